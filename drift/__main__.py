@@ -1,0 +1,5 @@
+"""Run the command line as ``python -m drift``."""
+
+from drift.cli import main
+
+main()

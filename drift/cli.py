@@ -1,0 +1,125 @@
+"""The ``drift`` command line: parses options, calls the library, renders the result.
+
+Heavy modules (numpy, CoolProp, scipy) are imported inside the commands, so ``drift --help`` and
+``drift --version`` start fast. Errors a user can cause end with a one-line message on stderr and
+exit status 2.
+"""
+
+from __future__ import annotations
+
+import functools
+import sys
+
+import click
+
+from drift import __version__
+
+FORMAT_OPTION = click.option(
+    "--format",
+    "fmt",
+    type=click.Choice(["table", "json", "csv"]),
+    default="table",
+    show_default=True,
+    help="Output format.",
+)
+
+
+def _range(name: str):
+    """A click range type from the air model's limits (drift.air.LIMITS)."""
+    from drift.air import LIMITS
+
+    low, high, _ = LIMITS[name]
+    return click.FloatRange(low, high)
+
+
+def reports_errors(command):
+    """Turn the library's DriftError (and unreadable files) into a message and exit status 2."""
+
+    @functools.wraps(command)
+    def wrapper(*args, **kwargs):
+        from drift.errors import DriftError
+
+        try:
+            return command(*args, **kwargs)
+        except DriftError as error:
+            click.echo(f"drift: error: {error}", err=True)
+            sys.exit(2)
+        except OSError as error:
+            click.echo(f"drift: error: {error.filename or ''}: {error.strerror or error}", err=True)
+            sys.exit(2)
+
+    return wrapper
+
+
+def pressure_pa(pressure_kpa: float | None, altitude_m: float | None) -> float:
+    """Pressure [Pa] from --pressure or --altitude (not both); sea level when neither is given."""
+    from drift import air, constants
+
+    if pressure_kpa is not None and altitude_m is not None:
+        raise click.UsageError("give --pressure or --altitude, not both")
+    if altitude_m is not None:
+        return float(air.pressure_from_altitude(altitude_m))
+    return constants.STANDARD_PRESSURE if pressure_kpa is None else pressure_kpa * 1e3
+
+
+def air_options(command):
+    """The room-air options shared by the computing commands."""
+    options = [
+        click.option("--temp", "temp_c", type=_range("temperature_c"), default=20.0, show_default=True,
+                     help="Air temperature [°C], -30 to 60."),
+        click.option("--rh", "rh_pct", type=_range("relative_humidity_pct"), default=50.0,
+                     show_default=True, help="Relative humidity of the room air [%], 0 to 100."),
+        click.option("--pressure", "pressure_kpa", type=_range("pressure_kpa"), default=None,
+                     help="Pressure [kPa], 50 to 110. Default: sea level, 101.325 kPa."),
+        click.option("--altitude", "altitude_m", type=_range("altitude_m"), default=None,
+                     help="Altitude [m], -400 to 5000, through the ISO 2533 standard atmosphere "
+                          "(instead of --pressure)."),
+        click.option("--co2", "co2_ppm", type=_range("co2_ppm"), default=420.0, show_default=True,
+                     help="CO2 of the dry room air [ppm], 0 to 100000."),
+    ]
+    for option in reversed(options):
+        command = option(command)
+    return command
+
+
+@click.group(context_settings={"help_option_names": ["-h", "--help"], "max_content_width": 100})
+@click.version_option(__version__, "--version", prog_name="drift")
+def main():
+    """How each note of a wind instrument moves in pitch with the air inside its bore.
+
+    Room temperature, humidity, altitude, CO2, the player's breath and warm-up change the speed
+    of sound in the bore; drift computes the real-gas properties of that air, the resonances of
+    the bore and the pitch of every note.
+    """
+
+
+@main.command("air")
+@air_options
+@click.option("--breath", "breath_fraction", type=_range("breath_fraction"), default=0.0,
+              show_default=True, help="Fraction of exhaled breath mixed into the room air (mole basis), 0 to 1.")
+@click.option("--breath-temp", "breath_temp_c", type=_range("temperature_c"), default=35.0,
+              show_default=True, help="Temperature of the exhaled breath [°C].")
+@click.option("--breath-co2", "breath_co2_pct", type=_range("breath_co2_pct"), default=4.5,
+              show_default=True, help="CO2 in the dry part of the breath [%], 0 to 10.")
+@FORMAT_OPTION
+@reports_errors
+def air_command(temp_c, rh_pct, pressure_kpa, altitude_m, co2_ppm, breath_fraction, breath_temp_c,
+                breath_co2_pct, fmt):
+    """Real-gas properties of room air with breath mixed in, at one condition.
+
+    The mixture is taken to --temp; water beyond saturation there condenses and is reported.
+    """
+    from drift import air, render
+    from drift.constants import ZERO_CELSIUS
+
+    p = pressure_pa(pressure_kpa, altitude_m)
+    breath = air.Breath(temperature_k=breath_temp_c + ZERO_CELSIUS, co2_fraction=breath_co2_pct / 100.0)
+    t = temp_c + ZERO_CELSIUS
+    state = air.air_state(t, p, t, rh_pct / 100.0, co2_ppm * 1e-6, breath_fraction, breath)
+    doc = air.state_record(state, breath_fraction)
+    text = {"json": render.to_json, "csv": render.air_csv, "table": render.air_table}[fmt](doc)
+    render.write_text(text, None)
+
+
+if __name__ == "__main__":  # pragma: no cover
+    main()

@@ -1,0 +1,110 @@
+"""Rendering of results: tables (tabulate), CSV and JSON text, and safe writing of output files.
+
+Nothing here computes physics; every function takes plain rows or dicts built by the library.
+"""
+
+from __future__ import annotations
+
+import csv
+import io
+import json
+import math
+import os
+import tempfile
+from pathlib import Path
+
+FORMATS = ("table", "json", "csv")
+
+
+def _clean(value):
+    """Make a value JSON-safe: numpy scalars to Python, NaN/inf to None."""
+    if hasattr(value, "item") and not isinstance(value, (list, tuple, dict)):
+        value = value.item()
+    if isinstance(value, float) and not math.isfinite(value):
+        return None
+    if isinstance(value, dict):
+        return {k: _clean(v) for k, v in value.items()}
+    if isinstance(value, (list, tuple)):
+        return [_clean(v) for v in value]
+    return value
+
+
+def to_json(document) -> str:
+    """JSON text of a document of dicts, lists and numbers (indent 2, trailing newline)."""
+    return json.dumps(_clean(document), indent=2, ensure_ascii=False) + "\n"
+
+
+def to_csv(rows: list[dict], columns: list[str] | None = None) -> str:
+    """CSV text (header + one line per row) of a list of flat dicts."""
+    columns = columns or (list(rows[0]) if rows else [])
+    buffer = io.StringIO()
+    writer = csv.DictWriter(buffer, fieldnames=columns, lineterminator="\n", extrasaction="ignore")
+    writer.writeheader()
+    for row in rows:
+        writer.writerow({k: _clean(v) for k, v in row.items()})
+    return buffer.getvalue()
+
+
+def table(rows, headers, floatfmt="g", colalign=None) -> str:
+    """A plain-text table (tabulate, 'simple' style) with a trailing newline."""
+    from tabulate import tabulate
+
+    return tabulate(rows, headers=headers, tablefmt="simple", floatfmt=floatfmt, colalign=colalign) + "\n"
+
+
+def write_text(text: str, path: str | os.PathLike | None) -> None:
+    """Write ``text`` to ``path`` atomically, or to standard output when ``path`` is None.
+
+    The text goes to a temporary file in the same folder first and replaces the target only when
+    complete, so a failed run never leaves a half-written or emptied output file.
+    """
+    if path is None:
+        import click
+
+        click.echo(text, nl=False)
+        return
+    target = Path(path)
+    handle, temporary = tempfile.mkstemp(dir=target.parent or ".", prefix=f".{target.name}.", suffix=".tmp")
+    try:
+        with os.fdopen(handle, "w", encoding="utf-8", newline="") as stream:
+            stream.write(text)
+        os.replace(temporary, target)
+    except BaseException:
+        Path(temporary).unlink(missing_ok=True)
+        raise
+
+
+# --------------------------------------------------------------------------------------------
+# drift air
+# --------------------------------------------------------------------------------------------
+
+AIR_QUANTITIES = (
+    ("temperature_c", "temperature", "°C", ".2f"),
+    ("pressure_kpa", "pressure", "kPa", ".3f"),
+    ("relative_humidity_pct", "relative humidity", "%", ".2f"),
+    ("breath_fraction", "breath fraction", "", ".3f"),
+    ("sound_speed_m_s", "speed of sound", "m/s", ".3f"),
+    ("density_kg_m3", "density", "kg/m³", ".5f"),
+    ("viscosity_pa_s", "dynamic viscosity", "Pa s", ".4e"),
+    ("thermal_conductivity_w_m_k", "thermal conductivity", "W/(m K)", ".5f"),
+    ("heat_capacity_j_kg_k", "heat capacity cp", "J/(kg K)", ".2f"),
+    ("heat_capacity_ratio", "heat capacity ratio γ", "", ".5f"),
+    ("prandtl_number", "Prandtl number", "", ".4f"),
+)
+
+
+def air_table(doc: dict) -> str:
+    """The ``drift air`` document as a two-part table: properties, then composition."""
+    rows = [[label, format(doc[key], fmt), unit] for key, label, unit, fmt in AIR_QUANTITIES]
+    rows += [[f"mole fraction {s}", f"{x:.6f}", "mol/mol"] for s, x in doc["mole_fractions"].items()]
+    text = table(rows, headers=["quantity", "value", "unit"], colalign=("left", "right", "left"))
+    if doc["condensed"]:
+        text += "note: the mixture is supersaturated at this temperature; the excess water condenses.\n"
+    return text
+
+
+def air_csv(doc: dict) -> str:
+    """The ``drift air`` document as one CSV row, mole fractions as x_<species> columns."""
+    row = {k: v for k, v in doc.items() if k != "mole_fractions"}
+    row.update({f"x_{s}": x for s, x in doc["mole_fractions"].items()})
+    return to_csv([row])

@@ -1,0 +1,215 @@
+"""Tests of drift.air against published equations, tables and an independent humid-air model."""
+
+import math
+
+import numpy as np
+import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
+from drift import air
+from drift.constants import ZERO_CELSIUS
+from drift.errors import OutOfRangeError
+
+# Molar masses [kg/mol] for the humidity ratio, IUPAC standard atomic weights (from memory).
+MOLAR_MASS = np.array([28.0134e-3, 31.9988e-3, 39.948e-3, 44.0095e-3, 18.01528e-3])
+
+
+def cramer_sound_speed(t_c, p_pa, x_w, x_c):
+    """Zero-frequency speed of sound in humid air [m/s]: Cramer (1993), J. Acoust. Soc. Am. 93(5),
+    2510-2516, Eq. 15 with the coefficients of its Table III; t in °C, p in Pa, mole fractions of
+    water vapour x_w and CO2 x_c. Valid 0-30 °C, 75-102 kPa, x_w up to 0.06, x_c up to 0.01."""
+    a = [331.5024, 0.603055, -0.000528, 51.471935, 0.1495874, -0.000782, -1.82e-7, 3.73e-8,
+         -2.93e-10, -85.20931, -0.228525, 5.91e-5, -2.835149, -2.15e-13, 29.179762, 0.000486]
+    t = t_c
+    return (a[0] + a[1] * t + a[2] * t**2
+            + (a[3] + a[4] * t + a[5] * t**2) * x_w
+            + (a[6] + a[7] * t + a[8] * t**2) * p_pa
+            + (a[9] + a[10] * t + a[11] * t**2) * x_c
+            + a[12] * x_w**2 + a[13] * p_pa**2 + a[14] * x_c**2 + a[15] * x_w * p_pa * x_c)
+
+
+def davis_water_fraction(t_c, p_pa, rh):
+    """x_w = h f p_sv / p with p_sv = exp(A T^2 + B T + C + D/T) and f = 1.00062 + 3.14e-8 p + 5.6e-7 t^2:
+    Davis (1992), Metrologia 29, 67, Eqs. A1.2-A1.4 (CIPM-81/91)."""
+    T = t_c + 273.15
+    p_sv = math.exp(1.2378847e-5 * T**2 - 1.9121316e-2 * T + 33.93711047 - 6.3431645e3 / T)
+    f = 1.00062 + 3.14e-8 * p_pa + 5.6e-7 * t_c**2
+    return rh * f * p_sv / p_pa
+
+
+CRAMER_GRID = [(t, rh, p) for t in (0, 5, 10, 15, 20, 25, 30) for rh in (0.0, 0.25, 0.5, 0.75, 1.0)
+               for p in (75e3, 85e3, 95e3, 102e3)]
+
+
+def test_sound_speed_against_cramer_1993():
+    """Cramer (1993) Eq. 15 over 0-30 °C, 0-100 % RH, 75-102 kPa: within its stated 300 ppm."""
+    worst = 0.0
+    for t_c, rh, p in CRAMER_GRID:
+        T = t_c + ZERO_CELSIUS
+        state = air.air_state(T, p, T, rh, 420e-6)
+        x_w = davis_water_fraction(t_c, p, rh)
+        reference = cramer_sound_speed(t_c, p, x_w, 420e-6 * (1 - x_w))
+        worst = max(worst, abs(float(state.properties.sound_speed) / reference - 1))
+    assert worst < 300e-6, f"worst relative deviation {worst * 1e6:.0f} ppm"
+
+
+def test_water_fraction_against_davis_1992():
+    """x_w from IAPWS-95 p_sat against the CIPM-81/91 formula of Davis (1992), Eq. A1.4: 0.1 %."""
+    for t_c, rh, p in CRAMER_GRID:
+        if rh == 0:
+            continue
+        ours = float(air.water_fraction(t_c + ZERO_CELSIUS, p, rh))
+        assert ours == pytest.approx(davis_water_fraction(t_c, p, rh), rel=1e-3)
+
+
+# Saturation pressure of water over liquid [Pa], IAPWS-95 steam tables (Wagner & Pruss 2002,
+# Table 13.1; values from memory) and the IAPWS-95 release check value at 275 K (Table 8).
+IAPWS_SATURATION = [
+    (273.16, 611.655),
+    (275.0, 698.451),
+    (293.15, 2339.2),
+    (298.15, 3169.9),
+    (313.15, 7384.9),
+    (323.15, 12352.0),
+    (333.15, 19946.0),
+]
+
+
+@pytest.mark.parametrize("temperature_k, expected_pa", IAPWS_SATURATION)
+def test_saturation_pressure_over_water_against_iapws_tables(temperature_k, expected_pa):
+    assert float(air.saturation_vapour_pressure(temperature_k)) == pytest.approx(expected_pa, rel=1e-3)
+
+
+def test_sublimation_pressure_iapws_2011():
+    """Ice Ih: p = 611.657 Pa at the triple point (Wagner et al. 2011, Eq. 6 by construction) and the
+    IAPWS R14-08 check value 8.947 352 740 189e-6 MPa at 230 K (from memory)."""
+    assert float(air.sublimation_pressure(273.16)) == pytest.approx(611.657, rel=1e-6)
+    assert float(air.sublimation_pressure(230.0)) == pytest.approx(8.947352740189, rel=1e-6)
+
+
+@pytest.mark.parametrize("t_c", [-30.0, -20.0, -10.0, -2.0, 5.0, 20.0, 35.0, 50.0])
+def test_saturation_fraction_against_coolprop_humid_air_model(t_c):
+    """Saturated water fraction against CoolProp's separate humid-air model (HAPropsSI 'psi_w',
+    Hyland-Wexler-based, over ice below 0 °C): 0.2 %."""
+    from CoolProp.HumidAirProp import HAPropsSI
+
+    T = t_c + ZERO_CELSIUS
+    expected = HAPropsSI("psi_w", "T", T, "P", 101325.0, "R", 1.0)
+    assert float(air.saturation_water_fraction(T, 101325.0)) == pytest.approx(expected, rel=2e-3)
+
+
+@pytest.mark.parametrize("t_c, rh, p", [(0, 0.3, 101325.0), (20, 0.5, 101325.0), (30, 0.9, 90e3),
+                                        (45, 0.6, 101325.0), (-10, 0.8, 80e3)])
+def test_density_and_humidity_ratio_against_coolprop_humid_air_model(t_c, rh, p):
+    """Density and humidity ratio against HAPropsSI ('Vha', 'W'): 0.2 %. HAPropsSI treats dry air as
+    one pseudo-pure fluid (Lemmon et al. 2000) with no separate CO2, so CO2 is set to 0 here."""
+    from CoolProp.HumidAirProp import HAPropsSI
+
+    T = t_c + ZERO_CELSIUS
+    state = air.air_state(T, p, T, rh, 0.0)
+    x = state.mole_fractions
+    ratio = x[4] * MOLAR_MASS[4] / float(np.dot(x[:4], MOLAR_MASS[:4]))
+    assert ratio == pytest.approx(HAPropsSI("W", "T", T, "P", p, "R", rh), rel=2e-3, abs=1e-7)
+    density = 1.0 / HAPropsSI("Vha", "T", T, "P", p, "R", rh)
+    assert float(state.properties.density) == pytest.approx(density, rel=2e-3)
+
+
+def test_iso_2533_pressures():
+    """ISO 2533:1975 (identical to the U.S. Standard Atmosphere 1976 below 11 km): 89 876 Pa at
+    1000 m and 79 501 Pa at 2000 m geometric altitude (table values, from memory)."""
+    assert air.pressure_from_altitude([1000.0, 2000.0]) == pytest.approx([89876.0, 79501.0], abs=2.0)
+    assert float(air.pressure_from_altitude(0.0)) == pytest.approx(101325.0)
+
+
+def test_sound_speed_invariants():
+    """c rises with temperature and with humidity and falls with CO2 (Cramer 1993, Table III signs)."""
+    def c(t_c=20.0, rh=0.5, co2=420e-6):
+        T = t_c + ZERO_CELSIUS
+        return float(air.air_state(T, 101325.0, T, rh, co2).properties.sound_speed)
+
+    assert c(t_c=10) < c(t_c=20) < c(t_c=30)
+    assert c(rh=0) < c(rh=0.5) < c(rh=1.0)
+    assert c(co2=0.0) > c(co2=0.01) > c(co2=0.05)
+    # The slope near room temperature is about 0.6 m/s per K (common practice).
+    assert (c(t_c=21) - c(t_c=19)) / 2 == pytest.approx(0.6, abs=0.03)
+
+
+def test_dry_air_composition_and_co2():
+    x = air.room_air(293.15, 101325.0, 0.0, 1000e-6)
+    assert x.sum() == pytest.approx(1.0)
+    assert x[3] == pytest.approx(1000e-6)
+    # N2/O2 ratio of ISO 2533 dry air is kept when CO2 changes.
+    assert x[0] / x[1] == pytest.approx(0.78084 / 0.209476)
+
+
+def test_breath_composition():
+    b = air.Breath(temperature_k=308.15, co2_fraction=0.05, o2_fraction=0.16)
+    x = air.breath_air(101325.0, b)
+    assert x.sum() == pytest.approx(1.0)
+    dry = 1.0 - x[4]
+    assert x[3] / dry == pytest.approx(0.05)
+    assert x[1] / dry == pytest.approx(0.16)
+    assert x[4] == pytest.approx(float(air.saturation_water_fraction(308.15, 101325.0)))
+    assert x[0] / x[2] == pytest.approx(0.78084 / 0.00934)
+
+
+def test_condensation_caps_water_at_saturation():
+    state = air.air_state(293.15, 101325.0, 293.15, 0.5, breath_fraction=1.0)
+    assert bool(state.condensed)
+    assert float(state.relative_humidity) == pytest.approx(1.0)
+    assert state.mole_fractions.sum() == pytest.approx(1.0)
+    warm = air.air_state(310.15, 101325.0, 293.15, 0.5, breath_fraction=1.0)
+    assert not bool(warm.condensed)
+
+
+@settings(max_examples=40, deadline=None)
+@given(t_c=st.floats(-30, 60), rh=st.floats(0, 1), phi=st.floats(0, 1), co2=st.floats(0, 0.1),
+       p=st.floats(50e3, 110e3))
+def test_mixture_is_a_valid_composition(t_c, rh, phi, co2, p):
+    T = t_c + ZERO_CELSIUS
+    room = air.room_air(T, p, rh, co2)
+    x, condensed = air.mix(room, air.breath_air(p), phi, T, p)
+    assert x.sum() == pytest.approx(1.0)
+    assert np.all(x >= 0)
+    assert x[4] <= float(air.saturation_water_fraction(T, p)) * (1 + 1e-9)
+
+
+def test_vectorised_matches_scalar_and_shapes():
+    temps = np.array([[280.0, 290.0], [300.0, 310.0]])
+    state = air.air_state(temps, 95e3, 293.15, 0.4, breath_fraction=np.array([0.0, 0.5]))
+    assert state.properties.sound_speed.shape == (2, 2)
+    single = air.air_state(300.0, 95e3, 293.15, 0.4, breath_fraction=0.0)
+    assert state.properties.sound_speed[1, 0] == pytest.approx(float(single.properties.sound_speed))
+
+
+@pytest.mark.parametrize("kwargs, word", [
+    (dict(temperature_k=400.0), "temperature"),
+    (dict(pressure_pa=20e3), "pressure"),
+    (dict(room_relative_humidity=1.5), "relative humidity"),
+    (dict(co2_fraction=0.2), "co2"),
+    (dict(breath_fraction=1.2), "breath fraction"),
+    (dict(temperature_k=float("nan")), "temperature"),
+])
+def test_out_of_range_raises_project_error(kwargs, word):
+    args = dict(temperature_k=293.15, pressure_pa=101325.0, room_temperature_k=293.15,
+                room_relative_humidity=0.5)
+    args.update(kwargs)
+    with pytest.raises(OutOfRangeError, match=word):
+        air.air_state(**args)
+
+
+def test_altitude_range():
+    with pytest.raises(OutOfRangeError, match="altitude"):
+        air.pressure_from_altitude(9000.0)
+
+
+def test_bore_profile_interpolates_and_holds_ends():
+    room = air.Room(293.15, 101325.0, 0.5)
+    profile = air.BoreProfile(room, np.array([0.1, 0.5]), np.array([305.0, 295.0]),
+                              np.array([0.8, 0.2]), np.array([300.0, 294.0]))
+    state = profile.air_at([0.0, 0.3, 0.6])
+    assert state.temperature == pytest.approx([305.0, 300.0, 295.0])
+    assert profile.wall_temperature_at(0.3) == pytest.approx(297.0)
+    c = state.properties.sound_speed
+    assert c[0] > c[1] > c[2]
