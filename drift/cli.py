@@ -121,5 +121,19 @@ def air_command(temp_c, rh_pct, pressure_kpa, altitude_m, co2_ppm, breath_fracti
     render.write_text(text, None)
 
 
+
+@main.command("climates")
+@FORMAT_OPTION
+@reports_errors
+def climates_command(fmt):
+    """List the bundled climates with their conditions."""
+    from drift import climate, render
+
+    rows = [climate.climate_record(c) for c in climate.bundled_climates()]
+    text = {"json": lambda r: render.to_json({"climates": r}), "csv": render.to_csv,
+            "table": render.climates_table}[fmt](rows)
+    render.write_text(text, None)
+
+
 if __name__ == "__main__":  # pragma: no cover
     main()

@@ -45,11 +45,12 @@ def to_csv(rows: list[dict], columns: list[str] | None = None) -> str:
     return buffer.getvalue()
 
 
-def table(rows, headers, floatfmt="g", colalign=None) -> str:
-    """A plain-text table (tabulate, 'simple' style) with a trailing newline."""
+def table(rows, headers, colalign=None) -> str:
+    """A plain-text table (tabulate, 'simple' style) of pre-formatted cells, with a trailing newline."""
     from tabulate import tabulate
 
-    return tabulate(rows, headers=headers, tablefmt="simple", floatfmt=floatfmt, colalign=colalign) + "\n"
+    return tabulate(rows, headers=headers, tablefmt="simple", colalign=colalign,
+                    disable_numparse=True) + "\n"
 
 
 def write_text(text: str, path: str | os.PathLike | None) -> None:
@@ -108,3 +109,26 @@ def air_csv(doc: dict) -> str:
     row = {k: v for k, v in doc.items() if k != "mole_fractions"}
     row.update({f"x_{s}": x for s, x in doc["mole_fractions"].items()})
     return to_csv([row])
+
+
+# --------------------------------------------------------------------------------------------
+# drift climates
+# --------------------------------------------------------------------------------------------
+
+
+def _player_label(row: dict) -> str:
+    if not row["playing"]:
+        return "resting"
+    minutes = row["minutes_played"]
+    return "steady" if minutes is None else f"{minutes:g} min"
+
+
+def climates_table(rows: list[dict]) -> str:
+    """The bundled climates, one line each, fitting 100 columns."""
+    import textwrap
+
+    body = [[r["name"], f"{r['temperature_c']:.1f}", f"{r['relative_humidity_pct']:.0f}",
+             f"{r['pressure_kpa']:.1f}", _player_label(r), textwrap.shorten(r["description"], 48)]
+            for r in rows]
+    return table(body, headers=["climate", "°C", "RH %", "kPa", "played", "description"],
+                 colalign=("left", "right", "right", "right", "left", "left"))

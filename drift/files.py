@@ -1,0 +1,122 @@
+"""Reading the project's TOML files (instruments, climates, materials) with strict, clear checks.
+
+Every problem raises :class:`drift.errors.InputFileError` with a message that names the file, the
+key (as ``[table] key``) and what is allowed. Unknown keys are errors, with a did-you-mean
+suggestion.
+"""
+
+from __future__ import annotations
+
+import difflib
+import math
+import tomllib
+from pathlib import Path
+
+from drift.errors import InputFileError
+
+
+def read_toml(path: str | Path, what: str = "file") -> dict:
+    """Parse a TOML file; unreadable or malformed files raise InputFileError naming the file."""
+    path = Path(path)
+    try:
+        with path.open("rb") as stream:
+            return tomllib.load(stream)
+    except FileNotFoundError:
+        raise InputFileError(f"{path}: no such {what}") from None
+    except OSError as error:
+        raise InputFileError(f"{path}: cannot read the {what}: {error.strerror}") from None
+    except tomllib.TOMLDecodeError as error:
+        raise InputFileError(f"{path}: not valid TOML: {error}") from None
+
+
+class Table:
+    """One table of a parsed TOML file, with typed, range-checked access to its keys.
+
+    ``where`` is the label of the table in messages (``""`` for the top level, ``"[air]"``...).
+    """
+
+    def __init__(self, data: dict, path: str | Path, where: str = "", allowed: tuple = ()):
+        self.data = data
+        self.path = str(path)
+        self.where = where
+        if not isinstance(data, dict):
+            self.fail(None, "must be a table")
+        unknown = [key for key in data if key not in allowed]
+        if unknown:
+            key = unknown[0]
+            close = difflib.get_close_matches(key, allowed, n=1)
+            hint = f"; did you mean '{close[0]}'?" if close else f"; allowed: {', '.join(allowed)}"
+            self.fail(key, f"is not a known key{hint}")
+
+    def label(self, key: str | None) -> str:
+        parts = [p for p in (self.where, key) if p]
+        return " ".join(parts) if parts else "top level"
+
+    def fail(self, key: str | None, message: str):
+        raise InputFileError(f"{self.path}: {self.label(key)} {message}")
+
+    def has(self, key: str) -> bool:
+        return key in self.data
+
+    def table(self, key: str, allowed: tuple, required: bool = False) -> "Table":
+        """A sub-table (``[key]``); an empty one when absent and not required."""
+        if key not in self.data:
+            if required:
+                raise InputFileError(f"{self.path}: {self._sub(key)} is missing (a table is required here)")
+            return Table({}, self.path, self._sub(key), allowed)
+        return Table(self.data[key], self.path, self._sub(key), allowed)
+
+    def tables(self, key: str, allowed: tuple) -> list["Table"]:
+        """An array of tables (``[[key]]``); empty when absent."""
+        items = self.data.get(key, [])
+        if not isinstance(items, list):
+            self.fail(key, "must be an array of tables ([[...]])")
+        return [Table(item, self.path, f"[[{key}]] #{i + 1}", allowed) for i, item in enumerate(items)]
+
+    def _sub(self, key: str) -> str:
+        return f"[{key}]" if not self.where else f"{self.where[:-1]}.{key}]"
+
+    def string(self, key: str, default: str | None = None, required: bool = False,
+               choices: tuple | None = None) -> str | None:
+        if key not in self.data:
+            if required:
+                self.fail(key, "is missing (a string is required)")
+            return default
+        value = self.data[key]
+        if not isinstance(value, str) or not value.strip():
+            self.fail(key, "must be a non-empty string")
+        if choices and value not in choices:
+            self.fail(key, f"= '{value}' is not allowed; use one of: {', '.join(choices)}")
+        return value
+
+    def boolean(self, key: str, default: bool) -> bool:
+        value = self.data.get(key, default)
+        if not isinstance(value, bool):
+            self.fail(key, "must be true or false")
+        return value
+
+    def number(self, key: str, default: float | None = None, required: bool = False,
+               low: float = -math.inf, high: float = math.inf, unit: str = "") -> float | None:
+        """A finite number in [low, high]; ``default`` when absent (``None`` allowed)."""
+        if key not in self.data:
+            if required:
+                self.fail(key, "is missing (a number is required)")
+            return default
+        return self.check_number(key, self.data[key], low, high, unit)
+
+    def check_number(self, key, value, low=-math.inf, high=math.inf, unit="") -> float:
+        if isinstance(value, bool) or not isinstance(value, (int, float)):
+            self.fail(key, f"must be a number, not {value!r}")
+        value = float(value)
+        if not math.isfinite(value) or not low <= value <= high:
+            self.fail(key, f"= {value:g} is outside the allowed range {_span(low, high, unit)}")
+        return value
+
+
+def _span(low: float, high: float, unit: str) -> str:
+    unit = f" {unit}" if unit else ""
+    if math.isinf(high):
+        return f"{low:g}{unit} or more"
+    if math.isinf(low):
+        return f"{high:g}{unit} or less"
+    return f"{low:g} to {high:g}{unit}"
