@@ -1,0 +1,31 @@
+"""Speed of the air layer: CoolProp states per second, cold and cached.
+
+Run: python bench/bench_air.py
+"""
+
+import time
+
+import numpy as np
+
+from drift import air
+
+
+def main():
+    start = time.perf_counter()
+    air.air_state(293.15, 101325.0, 293.15, 0.5)
+    print(f"first state (loads CoolProp): {time.perf_counter() - start:.2f} s")
+
+    temperatures = np.linspace(285.0, 308.0, 1000)
+    phi = np.linspace(0.0, 1.0, 1000)
+    start = time.perf_counter()
+    air.air_state(temperatures, 101325.0, 293.15, 0.5, breath_fraction=phi)
+    cold = time.perf_counter() - start
+    start = time.perf_counter()
+    air.air_state(temperatures, 101325.0, 293.15, 0.5, breath_fraction=phi)
+    warm = time.perf_counter() - start
+    print(f"1000 distinct states: {cold * 1e3:.0f} ms ({cold:.2f} ms per state)")
+    print(f"the same 1000 states again (cached): {warm * 1e3:.1f} ms")
+
+
+if __name__ == "__main__":
+    main()
