@@ -135,5 +135,58 @@ def climates_command(fmt):
     render.write_text(text, None)
 
 
+@main.command("warmup")
+@click.argument("instrument", required=False, default=None, metavar="[INSTRUMENT]")
+@click.option("--climate", "climate_name", default=None, metavar="CLIMATE",
+              help="Room and breath during the plan: bundled climate name or climate file (its "
+                   "[player] playing and minutes_played give way to the plan). Default: the "
+                   "instrument's [design] room.")
+@click.option("--plan", "plan_text", default="play:20", show_default=True, metavar="PLAN",
+              help="Phases in minutes, e.g. play:10,rest:3,play:5; the instrument starts at room "
+                   "temperature, full of room air.")
+@click.option("--step", "step_s", type=click.FloatRange(1.0, 3600.0), default=30.0, show_default=True,
+              help="Time between rows [s], 1 to 3600.")
+@click.option("--reference", "reference_name", default=None, metavar="CLIMATE",
+              help="Condition the drift is measured from. Default: the instrument's [design] condition.")
+@FORMAT_OPTION
+@click.option("--output", "output_path", type=click.Path(dir_okay=False, writable=True), default=None,
+              help="Write the result to this file instead of standard output.")
+@reports_errors
+def warmup_command(instrument, climate_name, plan_text, step_s, reference_name, fmt, output_path):
+    """Pitch of every note over a play/rest plan, and the time it takes to settle.
+
+    INSTRUMENT is a bundled instrument name or an instrument file. The bore warms while it is
+    played and cools during rests; each row gives the drift in cents from the reference, and the
+    report ends with the time each play phase takes to come within 2 cents of the steady state.
+    """
+    from drift import air, bore, climate, render, thermal
+    from drift.errors import DriftError
+
+    try:
+        plan = thermal.parse_plan(plan_text)
+    except DriftError as error:
+        raise click.BadParameter(str(error), param_hint="--plan") from None
+    inst = bore.load_instrument(instrument or bore.DEFAULT_INSTRUMENT)
+    design = inst.design
+    if climate_name:
+        where = climate.load_climate(climate_name)
+        room, breath, climate_label = where.room, where.player.breath, where.name
+    else:
+        room, breath = design.room(), air.DEFAULT_BREATH
+        climate_label = (f"design room ({design.temperature_k - 273.15:g} °C, "
+                         f"{design.relative_humidity * 100:g} % RH)")
+    if reference_name:
+        ref_climate = climate.load_climate(reference_name)
+        reference, reference_label = thermal.climate_profile(inst, ref_climate), ref_climate.name
+    else:
+        reference = thermal.design_profile(inst)
+        reference_label = "design condition" + (" (played)" if design.playing else " (at rest)")
+    result = thermal.warmup(inst, room, plan, step_s, breath, reference,
+                            names=(climate_label, reference_label))
+    doc = result.document()
+    text = {"json": render.to_json, "csv": render.warmup_csv, "table": render.warmup_table}[fmt](doc)
+    render.write_text(text, output_path)
+
+
 if __name__ == "__main__":  # pragma: no cover
     main()

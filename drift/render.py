@@ -132,3 +132,58 @@ def climates_table(rows: list[dict]) -> str:
             for r in rows]
     return table(body, headers=["climate", "°C", "RH %", "kPa", "played", "description"],
                  colalign=("left", "right", "right", "right", "left", "left"))
+
+
+# --------------------------------------------------------------------------------------------
+# drift warmup
+# --------------------------------------------------------------------------------------------
+
+
+def _warmup_grid(doc: dict):
+    """Minutes, states, {(minute, note): drift} and {minute: (first, last) air °C} of a document."""
+    minutes, states, drift, ends = [], {}, {}, {}
+    for r in doc["rows"]:
+        if r["minute"] not in states:
+            minutes.append(r["minute"])
+            states[r["minute"]] = r["state"]
+        drift[(r["minute"], r["note"])] = r["drift_cents"]
+    for b in doc["bore"]:
+        first, _ = ends.get(b["minute"], (None, None))
+        ends[b["minute"]] = (b["air_temperature_c"] if first is None else first, b["air_temperature_c"])
+    return minutes, states, drift, ends
+
+
+def warmup_table(doc: dict) -> str:
+    """The ``drift warmup`` document as a table: minutes as rows, the air temperature at the input
+    end and at the open end, and the drift [cents] of a handful of notes as columns; the steady
+    state and the settle time of each play phase under it."""
+    minutes, states, drift, ends = _warmup_grid(doc)
+    notes = doc["key_notes"]
+    rows = []
+    for m in minutes:
+        first, last = ends.get(m, (math.nan, math.nan))
+        rows.append([f"{m:g}", states[m], f"{first:.1f}", f"{last:.1f}"]
+                    + [_cents(drift.get((m, n))) for n in notes])
+    steady = {s["note"]: s["drift_cents"] for s in doc["steady"]}
+    rows.append(["steady", "play", "", ""] + [_cents(steady.get(n)) for n in notes])
+    headers = ["minute", "state", "air in °C", "air out °C"] + [f"{n} ¢" for n in notes]
+    head = (f"{doc['instrument']} in {doc['climate']}: drift [cents] against {doc['reference']}\n")
+    text = head + table(rows, headers=headers, colalign=("right", "left") + ("right",) * (len(headers) - 2))
+    for s in doc["settle"]:
+        if s["settled_minute"] is None:
+            text += (f"play phase {s['phase']} (from minute {s['start_minute']:g}): not yet within "
+                     f"{doc['tolerance_cents']:g} cents of the steady state when it ends\n")
+        else:
+            text += (f"play phase {s['phase']} (from minute {s['start_minute']:g}): within "
+                     f"{doc['tolerance_cents']:g} cents of the steady state after "
+                     f"{s['minutes_to_settle']:g} min (minute {s['settled_minute']:g})\n")
+    return text
+
+
+def _cents(value) -> str:
+    return "" if value is None or not math.isfinite(value) else f"{value:+.1f}"
+
+
+def warmup_csv(doc: dict) -> str:
+    """The ``drift warmup`` rows as CSV, long format (minute, state, note, frequency, drift)."""
+    return to_csv(doc["rows"], ["minute", "state", "note", "frequency_hz", "drift_cents"])

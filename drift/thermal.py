@@ -1202,6 +1202,9 @@ class Warmup:
         For each play phase: the first sample time from which every note stays within
         ``tolerance_cents`` of its steady-state frequency until the phase ends.
     tolerance_cents : float
+    plan : tuple of Phase
+    instrument, climate, reference : str
+        Names for the report.
     """
 
     notes: tuple[str, ...]
@@ -1214,6 +1217,58 @@ class Warmup:
     steady: ThermalState
     settle: list
     tolerance_cents: float
+    plan: tuple = ()
+    instrument: str = ""
+    climate: str = ""
+    reference: str = ""
+
+    def key_notes(self) -> list[int]:
+        """Indices of a handful of notes, in ascending pitch: the lowest, the middle and the highest
+        (by reference frequency) and the tuning note (A4 if there is one, else the note nearest
+        440 Hz)."""
+        f = self.reference_hz
+        valid = np.flatnonzero(np.isfinite(f))
+        if valid.size == 0:
+            return list(range(min(4, len(self.notes))))
+        by_pitch = valid[np.argsort(f[valid])]
+        picks = {int(by_pitch[0]), int(by_pitch[len(by_pitch) // 2]), int(by_pitch[-1])}
+        if "A4" in self.notes:
+            picks.add(self.notes.index("A4"))
+        else:
+            picks.add(int(valid[np.argmin(np.abs(np.log(f[valid] / 440.0)))]))
+        return sorted(picks, key=lambda i: f[i])
+
+    def document(self) -> dict:
+        """The result as plain data in boundary units (the JSON contract of ``drift warmup``)."""
+        rows, bore_rows = [], []
+        for t, state, freqs, drift in zip(self.times_s, self.states, self.frequencies_hz, self.drift_cents):
+            minute = round(float(t) / 60.0, 6)
+            for note, f, d in zip(self.notes, freqs, drift):
+                rows.append({"minute": minute, "state": state.phase, "note": note, "frequency_hz": float(f),
+                             "drift_cents": float(d)})
+            p = state.profile
+            for x, ta, tw, phi in zip(p.positions_m, p.temperature_k, p.wall_temperature_k, p.breath_fraction):
+                bore_rows.append({"minute": minute, "position_mm": round(float(x) * 1e3, 3),
+                                  "air_temperature_c": float(ta) - K.ZERO_CELSIUS,
+                                  "wall_temperature_c": float(tw) - K.ZERO_CELSIUS,
+                                  "breath_fraction": float(phi)})
+        steady_drift = 1200.0 * np.log2(self.steady_hz / self.reference_hz)
+        return {
+            "instrument": self.instrument,
+            "climate": self.climate,
+            "reference": self.reference,
+            "plan": [{"state": p.state, "minutes": p.duration_s / 60.0} for p in self.plan],
+            "tolerance_cents": self.tolerance_cents,
+            "rows": rows,
+            "bore": bore_rows,
+            "steady": [{"note": n, "frequency_hz": float(f), "drift_cents": float(d)}
+                       for n, f, d in zip(self.notes, self.steady_hz, steady_drift)],
+            "settle": [{"phase": i + 1, "start_minute": s / 60.0,
+                        "settled_minute": None if t is None else t / 60.0,
+                        "minutes_to_settle": None if t is None else (t - s) / 60.0}
+                       for i, s, t in self.settle],
+            "key_notes": [self.notes[i] for i in self.key_notes()],
+        }
 
 
 def sample_times(plan: Sequence[Phase], step_s: float) -> np.ndarray:
@@ -1230,14 +1285,16 @@ def sample_times(plan: Sequence[Phase], step_s: float) -> np.ndarray:
 
 def warmup(instrument, room: air.Room, plan: Sequence[Phase], step_s: float = 30.0,
            breath: air.Breath = air.DEFAULT_BREATH, reference: air.BoreProfile | None = None,
-           blowing: Blowing | None = None, tolerance_cents: float = 2.0) -> Warmup:
+           blowing: Blowing | None = None, tolerance_cents: float = 2.0, progress=None,
+           names: tuple[str, str] = ("", "")) -> Warmup:
     """The pitch of every note of ``instrument`` over a play/rest plan starting cold.
 
     Thermal states at :func:`sample_times` (:func:`instrument_timeline`) are turned into note
     frequencies by :func:`drift.pitch.note_frequencies`; drift is in cents against ``reference``
     (default :func:`design_profile`). The settle time of each play phase is measured on the
     sample grid against the steady state of playing (:func:`instrument_steady_state`,
-    :func:`settle_time`).
+    :func:`settle_time`). ``progress``, if given, is called once per profile evaluated;
+    ``names`` are the (climate, reference) names for the report.
     """
     from drift import pitch
 
@@ -1249,7 +1306,10 @@ def warmup(instrument, room: air.Room, plan: Sequence[Phase], step_s: float = 30
     labels = tuple(n.name if n.name else f"fingering {i + 1}" for i, n in enumerate(notes))
 
     def hz(profile):
-        return np.array([r.frequency_hz for r in pitch.note_frequencies(instrument, profile, notes=notes)])
+        out = np.array([r.frequency_hz for r in pitch.note_frequencies(instrument, profile, notes=notes)])
+        if progress is not None:
+            progress()
+        return out
 
     freqs = np.array([hz(s.profile) for s in states])
     ref = hz(reference)
@@ -1266,4 +1326,5 @@ def warmup(instrument, room: air.Room, plan: Sequence[Phase], step_s: float = 30
             t = settle_time(times[inside], steady_cents[inside], np.zeros(len(notes)), tolerance_cents)
             settle.append((index, start, t))
         start = end
-    return Warmup(labels, times, states, freqs, ref, drift, steady_hz, steady, settle, tolerance_cents)
+    return Warmup(labels, times, states, freqs, ref, drift, steady_hz, steady, settle, tolerance_cents,
+                  tuple(plan), instrument.name, names[0], names[1])
