@@ -169,6 +169,13 @@ def warmup_table(doc: dict) -> str:
     headers = ["minute", "state", "air in °C", "air out °C"] + [f"{n} ¢" for n in notes]
     head = (f"{doc['instrument']} in {doc['climate']}: drift [cents] against {doc['reference']}\n")
     text = head + table(rows, headers=headers, colalign=("right", "left") + ("right",) * (len(headers) - 2))
+    cold = doc.get("settle_from_cold_minutes")
+    if cold is None:
+        text += (f"from cold, continuous playing: not within {doc['tolerance_cents']:g} cents of the "
+                 "steady state within 10 h\n")
+    else:
+        text += (f"from cold, continuous playing: within {doc['tolerance_cents']:g} cents of the "
+                 f"steady state after {cold:.1f} min\n")
     for s in doc["settle"]:
         if s["settled_minute"] is None:
             text += (f"play phase {s['phase']} (from minute {s['start_minute']:g}): not yet within "

@@ -1205,6 +1205,9 @@ class Warmup:
     plan : tuple of Phase
     instrument, climate, reference : str
         Names for the report.
+    settle_from_cold_s : float or None
+        Time [s] of continuous playing from a cold start after which every note is within
+        ``tolerance_cents`` of its steady state (:func:`settle_from_cold`); None beyond 10 h.
     """
 
     notes: tuple[str, ...]
@@ -1221,6 +1224,7 @@ class Warmup:
     instrument: str = ""
     climate: str = ""
     reference: str = ""
+    settle_from_cold_s: float | None = None
 
     def key_notes(self) -> list[int]:
         """Indices of a handful of notes, in ascending pitch: the lowest, the middle and the highest
@@ -1268,6 +1272,7 @@ class Warmup:
                         "minutes_to_settle": None if t is None else (t - s) / 60.0}
                        for i, s, t in self.settle],
             "key_notes": [self.notes[i] for i in self.key_notes()],
+            "settle_from_cold_minutes": None if self.settle_from_cold_s is None else self.settle_from_cold_s / 60.0,
         }
 
 
@@ -1283,6 +1288,45 @@ def sample_times(plan: Sequence[Phase], step_s: float) -> np.ndarray:
     return np.unique(np.round(np.concatenate([grid, bounds]), 9))
 
 
+#: Longest continuous playing searched for a settle time [s] (10 h).
+SETTLE_SEARCH_S = 600.0 * 60.0
+
+
+def settle_from_cold(instrument, room: air.Room, steady_hz, tolerance_cents: float = 2.0,
+                     breath: air.Breath = air.DEFAULT_BREATH, blowing: Blowing | None = None,
+                     notes=None, progress=None, resolution_s: float = 5.0) -> float | None:
+    """Time [s] of continuous playing from a cold start until every note is within
+    ``tolerance_cents`` of its steady-state frequency ``steady_hz`` [Hz].
+
+    Found by bracketed root finding (:func:`scipy.optimize.brentq`, to ``resolution_s``) on
+    g(t) = max over notes |1200 log2(f(t) / f_steady)| - tolerance, each f(t) from a fresh
+    timeline of t seconds' playing. This assumes the approach is monotone, as the wall
+    temperatures are when warming from cold; returns 0 when the first note is already inside and
+    None when 10 h of playing do not reach the band.
+    """
+    from scipy.optimize import brentq
+
+    from drift import pitch
+
+    notes = instrument.fingerings() if notes is None else tuple(notes)
+    steady_hz = np.asarray(steady_hz, dtype=float)
+
+    def gap(t):
+        t = float(t)
+        plan = (Phase("play", max(t, 1.0)),)
+        state = instrument_timeline(instrument, room, plan, [t], breath, blowing)[0]
+        f = np.array([r.frequency_hz for r in pitch.note_frequencies(instrument, state.profile, notes=notes)])
+        if progress is not None:
+            progress()
+        return float(np.nanmax(np.abs(1200.0 * np.log2(f / steady_hz)))) - tolerance_cents
+
+    if gap(0.0) <= 0.0:
+        return 0.0
+    if gap(SETTLE_SEARCH_S) > 0.0:
+        return None
+    return float(brentq(gap, 0.0, SETTLE_SEARCH_S, xtol=resolution_s))
+
+
 def warmup(instrument, room: air.Room, plan: Sequence[Phase], step_s: float = 30.0,
            breath: air.Breath = air.DEFAULT_BREATH, reference: air.BoreProfile | None = None,
            blowing: Blowing | None = None, tolerance_cents: float = 2.0, progress=None,
@@ -1293,7 +1337,8 @@ def warmup(instrument, room: air.Room, plan: Sequence[Phase], step_s: float = 30
     frequencies by :func:`drift.pitch.note_frequencies`; drift is in cents against ``reference``
     (default :func:`design_profile`). The settle time of each play phase is measured on the
     sample grid against the steady state of playing (:func:`instrument_steady_state`,
-    :func:`settle_time`). ``progress``, if given, is called once per profile evaluated;
+    :func:`settle_time`), and for continuous playing from cold (:func:`settle_from_cold`).
+    ``progress``, if given, is called once per profile evaluated;
     ``names`` are the (climate, reference) names for the report.
     """
     from drift import pitch
@@ -1326,5 +1371,6 @@ def warmup(instrument, room: air.Room, plan: Sequence[Phase], step_s: float = 30
             t = settle_time(times[inside], steady_cents[inside], np.zeros(len(notes)), tolerance_cents)
             settle.append((index, start, t))
         start = end
+    from_cold = settle_from_cold(instrument, room, steady_hz, tolerance_cents, breath, blowing, notes, progress)
     return Warmup(labels, times, states, freqs, ref, drift, steady_hz, steady, settle, tolerance_cents,
-                  tuple(plan), instrument.name, names[0], names[1])
+                  tuple(plan), instrument.name, names[0], names[1], from_cold)

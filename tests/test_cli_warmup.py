@@ -60,6 +60,7 @@ def test_json_contract_rise_fall_and_settle(drift_cli, pipe):
     assert d3[1.0] < d3[3.0] < d3[6.0]          # a rise while played
     assert d3[9.0] < d3[7.0] < d3[6.0]          # a fall during the rest
     assert [s["phase"] for s in doc["settle"]] == [1, 3]
+    assert doc["settle_from_cold_minutes"] > 6.0  # a wooden body is not settled after 6 min
     first_air = [b["air_temperature_c"] for b in doc["bore"] if b["minute"] == 6.0]
     assert first_air[0] > first_air[-1] > 20.0  # warmest at the input end
 
@@ -67,7 +68,7 @@ def test_json_contract_rise_fall_and_settle(drift_cli, pipe):
 def test_table_and_csv(drift_cli, pipe):
     text = drift_cli("warmup", pipe, "--plan", "play:2", "--step", "60", check_rc=0).stdout
     assert "minute" in text and "D3" in text and "steady" in text
-    assert "play phase 1" in text and "2 cents" in text
+    assert "play phase 1" in text and "2 cents" in text and "from cold" in text
     lines = drift_cli("warmup", pipe, "--plan", "play:2", "--step", "60", "--format", "csv",
                       check_rc=0).stdout.splitlines()
     assert lines[0] == "minute,state,note,frequency_hz,drift_cents"

@@ -484,3 +484,21 @@ def test_instrument_profiles_warm_with_minutes_played(tmp_path):
     assert np.all(cold.breath_fraction == 1.0)  # the bore fills with breath at the first note
     with pytest.raises(OutOfRangeError, match="minutes played"):
         thermal.bore_profile(instrument, ROOM, minutes_played=-1.0)
+
+
+def test_settle_from_cold_brackets_the_band(tmp_path):
+    from drift import pitch
+
+    instrument = bore.load_instrument(_write_instrument(tmp_path))
+    steady = thermal.bore_profile(instrument, ROOM)
+    steady_hz = np.array([r.frequency_hz for r in pitch.note_frequencies(instrument, steady)])
+    t = thermal.settle_from_cold(instrument, ROOM, steady_hz, 2.0)
+    assert t is not None and t > 60.0
+
+    def worst(seconds):
+        profile = thermal.bore_profile(instrument, ROOM, minutes_played=seconds / 60.0)
+        f = np.array([r.frequency_hz for r in pitch.note_frequencies(instrument, profile)])
+        return np.max(np.abs(1200 * np.log2(f / steady_hz)))
+
+    assert worst(t - 30.0) > 2.0 > worst(t + 30.0)
+    assert thermal.settle_from_cold(instrument, ROOM, steady_hz, 100.0) == 0.0
