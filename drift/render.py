@@ -147,16 +147,19 @@ def _warmup_grid(doc: dict):
             minutes.append(r["minute"])
             states[r["minute"]] = r["state"]
         drift[(r["minute"], r["note"])] = r["drift_cents"]
+    inlet = doc.get("inlet_position_mm", 0.0)
     for b in doc["bore"]:
         first, _ = ends.get(b["minute"], (None, None))
-        ends[b["minute"]] = (b["air_temperature_c"] if first is None else first, b["air_temperature_c"])
+        if first is None or b["position_mm"] <= inlet + 1e-9:
+            first = b["air_temperature_c"]  # the last sample at or before the breath's inlet
+        ends[b["minute"]] = (first, b["air_temperature_c"])
     return minutes, states, drift, ends
 
 
 def warmup_table(doc: dict) -> str:
-    """The ``drift warmup`` document as a table: minutes as rows, the air temperature at the input
-    end and at the open end, and the drift [cents] of a handful of notes as columns; the steady
-    state and the settle time of each play phase under it."""
+    """The ``drift warmup`` document as a table: minutes as rows, the air temperature where the
+    breath enters and at the open end, and the drift [cents] of a handful of notes as columns; the
+    steady state and the settle times under it."""
     minutes, states, drift, ends = _warmup_grid(doc)
     notes = doc["key_notes"]
     rows = []

@@ -1208,6 +1208,8 @@ class Warmup:
     settle_from_cold_s : float or None
         Time [s] of continuous playing from a cold start after which every note is within
         ``tolerance_cents`` of its steady state (:func:`settle_from_cold`); None beyond 10 h.
+    inlet_position_m : float
+        Centre of the segment where the breath enters the bore [m] (the embouchure for a jet).
     """
 
     notes: tuple[str, ...]
@@ -1225,6 +1227,7 @@ class Warmup:
     climate: str = ""
     reference: str = ""
     settle_from_cold_s: float | None = None
+    inlet_position_m: float = 0.0
 
     def key_notes(self) -> list[int]:
         """Indices of a handful of notes, in ascending pitch: the lowest, the middle and the highest
@@ -1273,6 +1276,7 @@ class Warmup:
                        for i, s, t in self.settle],
             "key_notes": [self.notes[i] for i in self.key_notes()],
             "settle_from_cold_minutes": None if self.settle_from_cold_s is None else self.settle_from_cold_s / 60.0,
+            "inlet_position_mm": round(self.inlet_position_m * 1e3, 3),
         }
 
 
@@ -1372,5 +1376,7 @@ def warmup(instrument, room: air.Room, plan: Sequence[Phase], step_s: float = 30
             settle.append((index, start, t))
         start = end
     from_cold = settle_from_cold(instrument, room, steady_hz, tolerance_cents, breath, blowing, notes, progress)
+    wall = instrument_wall(instrument)
+    inlet = wall.positions_m[int(np.argmax(wall.flow_fraction > 0.0))]
     return Warmup(labels, times, states, freqs, ref, drift, steady_hz, steady, settle, tolerance_cents,
-                  tuple(plan), instrument.name, names[0], names[1], from_cold)
+                  tuple(plan), instrument.name, names[0], names[1], from_cold, float(inlet))
