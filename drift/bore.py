@@ -1,0 +1,742 @@
+"""Bore geometry of a wind instrument: instrument files, side holes, fingerings, discretisation.
+
+An instrument file (TOML, documented key by key in docs/formats.md) gives the bore as stations
+(position from the input end, inner diameter) joined by straight-sided (conical) pieces, the side
+holes, the fingerings, the input end (reed, lip mouthpiece or jet embouchure), a tuning joint
+and the condition the maker tuned it at. Everything here is SI: lengths in m, volumes in m^3,
+temperatures in K. File keys carry their units (``_mm``, ``_mm3``, ``_c``, ``_pct``, ``_kpa``).
+
+:func:`Instrument.segments` cuts the bore into short segments (split at every station and hole)
+for the transfer-matrix model of :mod:`drift.acoustics`; :meth:`Segments.expanded` applies thermal
+expansion of the wall from the reference temperature the dimensions are given at.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import difflib
+import math
+from dataclasses import dataclass, field
+from importlib import resources
+from pathlib import Path
+
+import numpy as np
+
+from drift.constants import DEFAULT_CO2_FRACTION, STANDARD_PRESSURE, ZERO_CELSIUS
+from drift.errors import DriftError, InputFileError, OutOfRangeError
+from drift.files import Table, read_toml
+
+EXCITATIONS = ("reed", "lips", "jet")
+
+TOP_KEYS = ("name", "description", "excitation", "material", "reference_temperature_c", "wall_mm",
+            "bore", "input", "hole", "note", "design", "tuning")
+BORE_KEYS = ("stations_mm",)
+HOLE_KEYS = ("name", "position_mm", "diameter_mm", "chimney_mm")
+NOTE_KEYS = ("name", "closed", "register")
+DESIGN_KEYS = ("temperature_c", "relative_humidity_pct", "pressure_kpa", "co2_ppm", "playing", "a4_hz")
+TUNING_KEYS = ("position_mm", "min_change_mm", "max_change_mm")
+INPUT_KEYS = {
+    "reed": ("added_volume_mm3",),
+    "lips": ("cup_volume_mm3", "throat_diameter_mm", "throat_length_mm", "backbore_length_mm"),
+    "jet": ("embouchure_position_mm", "embouchure_diameter_mm", "embouchure_chimney_mm",
+            "embouchure_outer_correction_mm"),
+}
+
+#: Equivalent volume of a reed's compliance and pumped flow [m^3]: about 1 cm^3 for a clarinet
+#: reed (Nederveen 1998, *Acoustical Aspects of Woodwind Instruments*, Sec. 9; Dalmont et al.
+#: 1995; value from memory). It acts as a compliance in parallel at the input.
+DEFAULT_REED_VOLUME = 1.0e-6
+#: Lip-mouthpiece defaults (common practice for a trumpet-sized mouthpiece, from memory):
+#: cup volume [m^3], throat diameter and length [m], backbore length [m].
+DEFAULT_CUP_VOLUME = 1.5e-6
+DEFAULT_THROAT_DIAMETER = 3.7e-3
+DEFAULT_THROAT_LENGTH = 5.0e-3
+DEFAULT_BACKBORE_LENGTH = 60.0e-3
+#: Jet embouchure defaults (common practice for a transverse flute, from memory): hole diameter
+#: and chimney height (wall plus lip plate) [m].
+DEFAULT_EMBOUCHURE_DIAMETER = 10.0e-3
+DEFAULT_EMBOUCHURE_CHIMNEY = 5.0e-3
+#: Wall thickness when neither the file nor its material gives one [m] (common practice for
+#: wooden and plastic woodwind bodies).
+DEFAULT_WALL = 3.0e-3
+#: Reference temperature of the dimensions when the file gives none [K] (20 °C, ISO 1).
+DEFAULT_REFERENCE_TEMPERATURE = ZERO_CELSIUS + 20.0
+#: Tuning-joint travel when a [tuning] table gives none [m] (common practice: a barrel or head
+#: joint pushed in up to 2 mm or pulled out up to 6 mm).
+DEFAULT_MIN_CHANGE = -2.0e-3
+DEFAULT_MAX_CHANGE = 6.0e-3
+#: Longest segment of the discretised bore [m]: short enough to follow a temperature profile.
+DEFAULT_MAX_SEGMENT = 0.02
+
+
+# --------------------------------------------------------------------------------------------
+# Dataclasses
+# --------------------------------------------------------------------------------------------
+
+
+@dataclass(frozen=True)
+class Hole:
+    """A side hole: tone hole, register or octave hole.
+
+    Attributes: name, position_m [m] (centre, from the input end), diameter_m [m],
+    chimney_m [m] (height of the hole through the wall).
+    """
+
+    name: str
+    position_m: float
+    diameter_m: float
+    chimney_m: float
+
+
+@dataclass(frozen=True)
+class Note:
+    """A fingering: the holes closed (all others open), the register it plays in, its name.
+
+    ``name`` is the sounding pitch in scientific pitch notation (None for an unnamed fingering);
+    ``register`` 1 is the lowest resonance of the fingering (peak of |Z| for reed and lips, dip
+    for jet), 2 the next, ...
+    """
+
+    name: str | None
+    closed: tuple[str, ...]
+    register: int = 1
+
+
+@dataclass(frozen=True)
+class Design:
+    """The condition the maker tuned the instrument at.
+
+    Attributes
+    ----------
+    temperature_k : float
+        Room temperature [K] (default 293.15 K, 20 °C).
+    relative_humidity : float
+        [0-1] (default 0.5).
+    pressure_pa : float
+        [Pa] (default 101325).
+    co2_fraction : float
+        [mol/mol] (default 420e-6).
+    playing : bool
+        True: in tune while played (bore air warmed and filled with breath, a state the thermal
+        layer computes); False (default): in tune with the bore full of room air at room
+        temperature.
+    a4_hz : float
+        Reference pitch [Hz] (default 440, ISO 16).
+    """
+
+    temperature_k: float = ZERO_CELSIUS + 20.0
+    relative_humidity: float = 0.5
+    pressure_pa: float = STANDARD_PRESSURE
+    co2_fraction: float = DEFAULT_CO2_FRACTION
+    playing: bool = False
+    a4_hz: float = 440.0
+
+    def room(self):
+        """The design room air as :class:`drift.air.Room`."""
+        from drift import air
+
+        return air.Room(self.temperature_k, self.pressure_pa, self.relative_humidity, self.co2_fraction)
+
+
+@dataclass(frozen=True)
+class Tuning:
+    """The tuning joint: where length is added or removed, and how far it may move.
+
+    Attributes: position_m [m] from the input end, min_change_m [m] (negative: pushed in),
+    max_change_m [m] (positive: pulled out).
+    """
+
+    position_m: float
+    min_change_m: float = DEFAULT_MIN_CHANGE
+    max_change_m: float = DEFAULT_MAX_CHANGE
+
+
+@dataclass(frozen=True)
+class InputEnd:
+    """What the exciter adds at the input end of the bore.
+
+    reed : ``added_volume_m3`` [m^3], the reed's equivalent volume plus any mouthpiece cavity
+        not drawn as bore (a compliance in parallel at the input).
+    lips : ``added_volume_m3`` is the cup volume [m^3]; a throat (cylinder of
+        ``throat_diameter_m`` x ``throat_length_m``) and a backbore (cone from the throat to the
+        bore's first diameter, ``backbore_length_m``) lie before position 0.
+    jet : the embouchure hole, centre at ``embouchure_position_m`` [m] from the closed end
+        (position 0; the bore before it is the cavity), of ``embouchure_diameter_m`` and
+        ``embouchure_chimney_m`` [m]; ``embouchure_outer_correction_m`` [m] is the outer end
+        correction (None: the model's hole default; larger when the lip covers the hole).
+    """
+
+    kind: str
+    added_volume_m3: float = 0.0
+    throat_diameter_m: float = 0.0
+    throat_length_m: float = 0.0
+    backbore_length_m: float = 0.0
+    embouchure_position_m: float = 0.0
+    embouchure_diameter_m: float = 0.0
+    embouchure_chimney_m: float = 0.0
+    embouchure_outer_correction_m: float | None = None
+
+
+@dataclass(frozen=True)
+class Instrument:
+    """A wind instrument: bore, holes, fingerings, input end, tuning joint and design condition.
+
+    ``stations_m`` is an (n, 2) array of [position from the input end, inner diameter] [m],
+    positions strictly ascending; the bore is conical between stations.
+    """
+
+    name: str
+    excitation: str
+    stations_m: np.ndarray
+    holes: tuple[Hole, ...] = ()
+    notes: tuple[Note, ...] = ()
+    input_end: InputEnd = field(default_factory=lambda: InputEnd("reed", DEFAULT_REED_VOLUME))
+    design: Design = field(default_factory=Design)
+    tuning: Tuning | None = None
+    material: str | None = None
+    reference_temperature_k: float = DEFAULT_REFERENCE_TEMPERATURE
+    wall_m: float | None = None
+    description: str = ""
+    source: str = ""
+
+    @property
+    def length_m(self) -> float:
+        """Bore length [m] from the input end to the open end."""
+        return float(self.stations_m[-1, 0])
+
+    @property
+    def hole_names(self) -> tuple[str, ...]:
+        return tuple(h.name for h in self.holes)
+
+    @property
+    def wall_thickness_m(self) -> float:
+        """Wall thickness [m]: the file's ``wall_mm``, else the material's typical wall, else 3 mm."""
+        if self.wall_m is not None:
+            return self.wall_m
+        if self.material is not None:
+            from drift import thermal
+
+            return thermal.material(self.material).wall_thickness
+        return DEFAULT_WALL
+
+    def fingerings(self) -> tuple[Note, ...]:
+        """The notes of the file; with none, one unnamed fingering with every hole open."""
+        return self.notes or (Note(None, (), 1),)
+
+    def open_mask(self, notes=None) -> np.ndarray:
+        """Boolean (n_notes, n_holes) array, True where a hole is open in that fingering."""
+        notes = self.fingerings() if notes is None else notes
+        names = self.hole_names
+        mask = np.ones((len(notes), len(names)), dtype=bool)
+        for i, note in enumerate(notes):
+            for hole in note.closed:
+                mask[i, names.index(hole)] = False
+        return mask
+
+    def diameter_at(self, positions_m) -> np.ndarray:
+        """Bore diameter [m] at positions [m], linear between stations."""
+        return np.interp(positions_m, self.stations_m[:, 0], self.stations_m[:, 1])
+
+    def with_holes(self, holes) -> "Instrument":
+        """A copy with other holes (same names are expected by the notes)."""
+        return dataclasses.replace(self, holes=tuple(holes))
+
+    def with_joint_change(self, delta_m: float) -> "Instrument":
+        """The instrument with ``delta_m`` [m] of bore added (> 0) or removed (< 0) at the joint.
+
+        Length is inserted or cut at ``tuning.position_m``; stations and holes below it move by
+        ``delta_m``. An inserted piece is a cylinder of the bore diameter at the joint; a removed
+        piece takes out the bore from the joint to ``joint + |delta_m|`` (its diameter at the joint
+        is kept). Raises :class:`DriftError` without a tuning joint, and
+        :class:`OutOfRangeError` outside ``[min_change_m, max_change_m]``.
+        """
+        if self.tuning is None:
+            raise DriftError(f"{self.name}: the instrument has no [tuning] joint")
+        t = self.tuning
+        if not t.min_change_m - 1e-12 <= delta_m <= t.max_change_m + 1e-12:
+            raise OutOfRangeError(
+                f"{self.name}: joint change {delta_m * 1e3:g} mm is outside the allowed range "
+                f"{t.min_change_m * 1e3:g} to {t.max_change_m * 1e3:g} mm"
+            )
+        return self.with_length_change(t.position_m, delta_m)
+
+    def with_length_change(self, position_m: float, delta_m: float) -> "Instrument":
+        """The instrument with ``delta_m`` [m] of bore added (> 0) or removed (< 0) at ``position_m``.
+
+        The operation behind :meth:`with_joint_change`, without its travel limits (used by the
+        hole-layout solver to set the bore length). Raises :class:`OutOfRangeError` when a removal
+        would cut a hole or the whole bore beyond the position.
+        """
+        if delta_m == 0.0:
+            return self
+        p = position_m
+        x, d = self.stations_m[:, 0], self.stations_m[:, 1]
+        if delta_m < 0 and p - delta_m >= x[-1]:
+            raise OutOfRangeError(f"{self.name}: cannot remove {-delta_m * 1e3:g} mm beyond {p * 1e3:g} mm")
+        d_joint = float(np.interp(p, x, d))
+        before = [(xi, di) for xi, di in zip(x, d) if xi < p - 1e-12]
+        if delta_m > 0:
+            after = [(xi + delta_m, di) for xi, di in zip(x, d) if xi > p + 1e-12]
+            new = before + [(p, d_joint), (p + delta_m, d_joint)] + after
+        else:
+            cut = -delta_m
+            after = [(xi - cut, di) for xi, di in zip(x, d) if xi > p + cut + 1e-12]
+            new = before + [(p, d_joint)] + after
+        holes = []
+        for h in self.holes:
+            if h.position_m > p:
+                if delta_m < 0 and h.position_m < p - delta_m + h.diameter_m / 2:
+                    raise OutOfRangeError(
+                        f"{self.name}: removing {-delta_m * 1e3:g} mm at {p * 1e3:g} mm would cut hole {h.name}"
+                    )
+                h = dataclasses.replace(h, position_m=h.position_m + delta_m)
+            holes.append(h)
+        tuning = self.tuning
+        if tuning is not None and tuning.position_m > p:
+            tuning = dataclasses.replace(tuning, position_m=tuning.position_m + delta_m)
+        stations = _dedupe(np.array(new, dtype=float))
+        return dataclasses.replace(self, stations_m=stations, holes=tuple(holes), tuning=tuning)
+
+    def segments(self, max_segment_m: float = DEFAULT_MAX_SEGMENT) -> "Segments":
+        """The bore cut into segments no longer than ``max_segment_m`` [m] (see :func:`discretise`)."""
+        return discretise(self, max_segment_m)
+
+
+def _dedupe(stations: np.ndarray) -> np.ndarray:
+    keep = np.concatenate([[True], np.diff(stations[:, 0]) > 1e-12])
+    return stations[keep]
+
+
+# --------------------------------------------------------------------------------------------
+# Discretisation
+# --------------------------------------------------------------------------------------------
+
+
+@dataclass(frozen=True)
+class Segments:
+    """The bore as a chain of conical (or cylindrical) segments, from the input end outwards.
+
+    Attributes
+    ----------
+    start_m, length_m : ndarray (n,) [m]
+        Start position (from the input end; negative for a lip mouthpiece's throat and backbore)
+        and length of each segment.
+    radius_in_m, radius_out_m : ndarray (n,) [m]
+        Radius at the segment's start and end.
+    n_cavity : int
+        For jet excitation, the first ``n_cavity`` segments form the closed cavity between the
+        stopped end (position 0) and the embouchure; the input point is the start of segment
+        ``n_cavity``. 0 otherwise.
+    hole_segment : ndarray (h,) of int
+        Each hole sits at the start of this segment.
+    hole_radius_m, hole_chimney_m, hole_bore_radius_m : ndarray (h,) [m]
+        Hole radius, chimney height and main-bore radius at the hole.
+    hole_position_m : ndarray (h,) [m]
+    excitation : str
+    added_volume_m3 : float
+        Compliance volume in parallel at the input [m^3] (reed volume or lip cup).
+    embouchure_radius_m, embouchure_chimney_m : float [m]
+    embouchure_outer_correction_m : float or None [m]
+    """
+
+    start_m: np.ndarray
+    length_m: np.ndarray
+    radius_in_m: np.ndarray
+    radius_out_m: np.ndarray
+    n_cavity: int
+    hole_segment: np.ndarray
+    hole_radius_m: np.ndarray
+    hole_chimney_m: np.ndarray
+    hole_bore_radius_m: np.ndarray
+    hole_position_m: np.ndarray
+    excitation: str
+    added_volume_m3: float = 0.0
+    embouchure_radius_m: float = 0.0
+    embouchure_chimney_m: float = 0.0
+    embouchure_outer_correction_m: float | None = None
+
+    @property
+    def midpoints_m(self) -> np.ndarray:
+        """Segment midpoints [m]."""
+        return self.start_m + 0.5 * self.length_m
+
+    @property
+    def n(self) -> int:
+        return len(self.length_m)
+
+    def expanded(self, segment_axial, segment_radial, hole_axial, hole_radial) -> "Segments":
+        """The segments with every dimension scaled by thermal expansion factors.
+
+        Each segment's length scales by ``segment_axial`` (n,) and its radii by
+        ``segment_radial`` (n,); positions follow as cumulative sums from the first start. Each
+        hole's radius and chimney scale by ``hole_radial`` (h,) (``hole_axial`` is accepted for
+        symmetry; a hole's position follows its segment). Factors are 1 + alpha (T - T_ref),
+        see :func:`expansion_factors`.
+        """
+        ax = np.asarray(segment_axial, dtype=float)
+        rad = np.asarray(segment_radial, dtype=float)
+        length = self.length_m * ax
+        start = self.start_m[0] * ax[0] + np.concatenate([[0.0], np.cumsum(length)[:-1]])
+        hr = np.asarray(hole_radial, dtype=float)
+        del hole_axial
+        seg = self.hole_segment
+        return dataclasses.replace(
+            self,
+            start_m=start,
+            length_m=length,
+            radius_in_m=self.radius_in_m * rad,
+            radius_out_m=self.radius_out_m * rad,
+            hole_radius_m=self.hole_radius_m * hr,
+            hole_chimney_m=self.hole_chimney_m * hr,
+            hole_bore_radius_m=self.hole_bore_radius_m * (rad[seg] if len(seg) else 1.0),
+            hole_position_m=start[seg] if len(seg) else self.hole_position_m,
+            added_volume_m3=self.added_volume_m3 * float(rad[self.n_cavity]) ** 3,
+            embouchure_radius_m=self.embouchure_radius_m * float(rad[self.n_cavity]),
+            embouchure_chimney_m=self.embouchure_chimney_m * float(rad[self.n_cavity]),
+        )
+
+
+def expansion_factors(wall_temperature_k, expansion_per_k: float,
+                      reference_temperature_k: float = DEFAULT_REFERENCE_TEMPERATURE):
+    """Linear thermal expansion factors 1 + alpha (T_wall - T_ref) [-].
+
+    Parameters
+    ----------
+    wall_temperature_k : array_like
+        Wall temperature [K], for example one value per segment.
+    expansion_per_k : float
+        Linear expansion coefficient of the wall material [1/K].
+    reference_temperature_k : float
+        Temperature the dimensions are given at [K].
+
+    Notes
+    -----
+    The linear (first-order) law L(T) = L_ref (1 + alpha (T - T_ref)), valid for |alpha dT| << 1
+    (any physics text, e.g. Incropera et al. 2007, Sec. 1; common practice).
+    """
+    return 1.0 + expansion_per_k * (np.asarray(wall_temperature_k, dtype=float) - reference_temperature_k)
+
+
+def discretise(instrument: Instrument, max_segment_m: float = DEFAULT_MAX_SEGMENT) -> Segments:
+    """Cut the bore into segments, split at every station, hole and the embouchure.
+
+    Between stations the bore is a cone (radius linear in position); each piece between two
+    split points is cut into equal segments no longer than ``max_segment_m`` [m], so a
+    temperature or composition profile along the bore can be followed segment by segment. For
+    lips, a throat cylinder and a backbore cone are put before position 0.
+    """
+    if not max_segment_m > 0:
+        raise ValueError("max_segment_m must be positive")
+    st = instrument.stations_m
+    x, r = st[:, 0], st[:, 1] / 2.0
+    cuts = set(float(v) for v in x)
+    cuts.update(h.position_m for h in instrument.holes)
+    inp = instrument.input_end
+    if instrument.excitation == "jet":
+        cuts.add(inp.embouchure_position_m)
+    edges = np.array(sorted(cuts))
+    points = [edges[0]]
+    for a, b in zip(edges[:-1], edges[1:]):
+        n = max(1, math.ceil((b - a) / max_segment_m - 1e-9))
+        points.extend(np.linspace(a, b, n + 1)[1:])
+    points = np.asarray(points)
+    radius = np.interp(points, x, r)
+    start, length = points[:-1], np.diff(points)
+    r_in, r_out = radius[:-1], radius[1:]
+    if instrument.excitation == "lips":
+        r0 = r[0]
+        rt = inp.throat_diameter_m / 2.0
+        lt, lb = inp.throat_length_m, inp.backbore_length_m
+        pre_start, pre_len, pre_in, pre_out = [], [], [], []
+        if lt > 0:
+            pre_start.append(-(lt + lb)); pre_len.append(lt); pre_in.append(rt); pre_out.append(rt)
+        if lb > 0:
+            nb = max(1, math.ceil(lb / max_segment_m - 1e-9))
+            xb = np.linspace(-lb, 0.0, nb + 1)
+            rb = rt + (r0 - rt) * (xb + lb) / lb
+            pre_start.extend(xb[:-1]); pre_len.extend(np.diff(xb)); pre_in.extend(rb[:-1]); pre_out.extend(rb[1:])
+        start = np.concatenate([pre_start, start])
+        length = np.concatenate([pre_len, length])
+        r_in = np.concatenate([pre_in, r_in])
+        r_out = np.concatenate([pre_out, r_out])
+    n_cavity = 0
+    if instrument.excitation == "jet":
+        n_cavity = int(np.searchsorted(start, inp.embouchure_position_m - 1e-12))
+    hole_segment = np.array([int(np.argmin(np.abs(start - h.position_m))) for h in instrument.holes],
+                            dtype=int)
+    holes = instrument.holes
+    return Segments(
+        start_m=np.asarray(start, dtype=float),
+        length_m=np.asarray(length, dtype=float),
+        radius_in_m=np.asarray(r_in, dtype=float),
+        radius_out_m=np.asarray(r_out, dtype=float),
+        n_cavity=n_cavity,
+        hole_segment=hole_segment,
+        hole_radius_m=np.array([h.diameter_m / 2 for h in holes], dtype=float),
+        hole_chimney_m=np.array([h.chimney_m for h in holes], dtype=float),
+        hole_bore_radius_m=np.asarray(r_in, dtype=float)[hole_segment] if len(holes) else np.zeros(0),
+        hole_position_m=np.array([h.position_m for h in holes], dtype=float),
+        excitation=instrument.excitation,
+        added_volume_m3=inp.added_volume_m3,
+        embouchure_radius_m=inp.embouchure_diameter_m / 2,
+        embouchure_chimney_m=inp.embouchure_chimney_m,
+        embouchure_outer_correction_m=inp.embouchure_outer_correction_m,
+    )
+
+
+# --------------------------------------------------------------------------------------------
+# Instrument files
+# --------------------------------------------------------------------------------------------
+
+
+def parse_instrument(data: dict, path: str | Path = "<instrument>") -> Instrument:
+    """An :class:`Instrument` from the parsed TOML of an instrument file, strictly checked.
+
+    Every problem raises :class:`InputFileError` naming the file, the key and what is allowed;
+    see docs/formats.md for the keys and their defaults.
+    """
+    from drift import pitch
+
+    top = Table(data, path, "", TOP_KEYS)
+    name = top.string("name", required=True)
+    excitation = top.string("excitation", required=True, choices=EXCITATIONS)
+    description = top.string("description", default="") if top.has("description") else ""
+    material = None
+    if top.has("material"):
+        material = top.string("material")
+        from drift import thermal
+
+        try:
+            thermal.material(material)
+        except InputFileError as error:
+            top.fail("material", f"= '{material}': {error}")
+    t_ref = top.number("reference_temperature_c", 20.0, low=-30.0, high=60.0, unit="°C") + ZERO_CELSIUS
+    wall = top.number("wall_mm", None, low=0.1, high=50.0, unit="mm")
+    wall_m = None if wall is None else wall * 1e-3
+
+    bore = top.table("bore", BORE_KEYS, required=True)
+    stations = _stations(bore)
+
+    inp = _input_end(top, excitation, stations)
+    default_chimney = wall_m
+    if default_chimney is None:
+        default_chimney = DEFAULT_WALL
+        if material is not None:
+            from drift import thermal
+
+            default_chimney = thermal.material(material).wall_thickness
+    holes = []
+    length = stations[-1, 0]
+    for t in top.tables("hole", HOLE_KEYS):
+        hname = t.string("name", required=True)
+        if hname in [h.name for h in holes]:
+            t.fail("name", f"= '{hname}' is used by another hole; hole names must be unique")
+        low = inp.embouchure_position_m * 1e3 if excitation == "jet" else 0.0
+        pos = t.number("position_mm", required=True, low=low, high=length * 1e3, unit="mm")
+        if excitation == "jet" and pos <= low:
+            t.fail("position_mm", f"= {pos:g} must lie beyond the embouchure ({low:g} mm)")
+        local_d = float(np.interp(pos * 1e-3, stations[:, 0], stations[:, 1]))
+        dia = t.number("diameter_mm", required=True, low=0.1, high=local_d * 1e3, unit="mm (at most the bore)")
+        chim = t.number("chimney_mm", default_chimney * 1e3, low=0.0, high=100.0, unit="mm")
+        holes.append(Hole(hname, pos * 1e-3, dia * 1e-3, chim * 1e-3))
+
+    names = [h.name for h in holes]
+    notes = []
+    for t in top.tables("note", NOTE_KEYS):
+        nname = t.string("name", required=True)
+        try:
+            pitch.note_to_midi(nname)
+        except ValueError as error:
+            t.fail("name", f"= '{nname}': {error}")
+        closed = t.data.get("closed", [])
+        if not isinstance(closed, list) or not all(isinstance(c, str) for c in closed):
+            t.fail("closed", "must be a list of hole names")
+        for c in closed:
+            if c not in names:
+                close = difflib.get_close_matches(c, names, n=1)
+                hint = f"; did you mean '{close[0]}'?" if close else f"; holes: {', '.join(names) or 'none'}"
+                t.fail("closed", f"names unknown hole '{c}'{hint}")
+        register = t.data.get("register", 1)
+        if isinstance(register, bool) or not isinstance(register, int) or not 1 <= register <= 12:
+            t.fail("register", f"= {register!r} must be a whole number from 1 to 12")
+        notes.append(Note(nname, tuple(closed), register))
+
+    d = top.table("design", DESIGN_KEYS)
+    design = Design(
+        temperature_k=d.number("temperature_c", 20.0, low=-30.0, high=60.0, unit="°C") + ZERO_CELSIUS,
+        relative_humidity=d.number("relative_humidity_pct", 50.0, low=0.0, high=100.0, unit="%") / 100.0,
+        pressure_pa=d.number("pressure_kpa", STANDARD_PRESSURE / 1e3, low=50.0, high=110.0, unit="kPa") * 1e3,
+        co2_fraction=d.number("co2_ppm", DEFAULT_CO2_FRACTION * 1e6, low=0.0, high=100000.0, unit="ppm") * 1e-6,
+        playing=d.boolean("playing", False),
+        a4_hz=d.number("a4_hz", 440.0, low=380.0, high=480.0, unit="Hz"),
+    )
+
+    tuning = None
+    if top.has("tuning"):
+        tt = top.table("tuning", TUNING_KEYS)
+        lo = inp.embouchure_position_m * 1e3 if excitation == "jet" else 0.0
+        pos = tt.number("position_mm", required=True, low=lo, high=length * 1e3, unit="mm")
+        mn = tt.number("min_change_mm", DEFAULT_MIN_CHANGE * 1e3, low=-50.0, high=0.0, unit="mm")
+        mx = tt.number("max_change_mm", DEFAULT_MAX_CHANGE * 1e3, low=0.0, high=50.0, unit="mm")
+        for h in holes:
+            if abs(h.position_m - pos * 1e-3) < h.diameter_m / 2:
+                tt.fail("position_mm", f"= {pos:g} lies within hole {h.name}; put the joint between holes")
+        tuning = Tuning(pos * 1e-3, mn * 1e-3, mx * 1e-3)
+
+    return Instrument(
+        name=name, excitation=excitation, stations_m=stations, holes=tuple(holes), notes=tuple(notes),
+        input_end=inp, design=design, tuning=tuning, material=material, reference_temperature_k=t_ref,
+        wall_m=wall_m, description=description, source=str(path),
+    )
+
+
+def _stations(bore: Table) -> np.ndarray:
+    raw = bore.data.get("stations_mm")
+    if raw is None:
+        bore.fail("stations_mm", "is missing (a list of [position_mm, diameter_mm] pairs is required)")
+    if not isinstance(raw, list) or len(raw) < 2:
+        bore.fail("stations_mm", "must list at least two [position_mm, diameter_mm] pairs")
+    out = []
+    for i, pair in enumerate(raw):
+        if not isinstance(pair, list) or len(pair) != 2:
+            bore.fail("stations_mm", f"entry {i + 1} must be a pair [position_mm, diameter_mm]")
+        x = bore.check_number(f"stations_mm entry {i + 1} position", pair[0], 0.0, 10000.0, "mm")
+        dia = bore.check_number(f"stations_mm entry {i + 1} diameter", pair[1], 0.5, 500.0, "mm")
+        out.append((x * 1e-3, dia * 1e-3))
+    out = np.array(out)
+    if out[0, 0] != 0.0:
+        bore.fail("stations_mm", f"must start at position 0 (the input end), not {out[0, 0] * 1e3:g} mm")
+    if np.any(np.diff(out[:, 0]) <= 0):
+        i = int(np.argmax(np.diff(out[:, 0]) <= 0)) + 2
+        bore.fail("stations_mm", f"positions must increase strictly (entry {i})")
+    return out
+
+
+def _input_end(top: Table, excitation: str, stations: np.ndarray) -> InputEnd:
+    t = top.table("input", INPUT_KEYS[excitation])
+    if excitation == "reed":
+        v = t.number("added_volume_mm3", DEFAULT_REED_VOLUME * 1e9, low=0.0, high=1e6, unit="mm³")
+        return InputEnd("reed", added_volume_m3=v * 1e-9)
+    if excitation == "lips":
+        return InputEnd(
+            "lips",
+            added_volume_m3=t.number("cup_volume_mm3", DEFAULT_CUP_VOLUME * 1e9, low=0.0, high=1e6, unit="mm³") * 1e-9,
+            throat_diameter_m=t.number("throat_diameter_mm", DEFAULT_THROAT_DIAMETER * 1e3, low=0.5, high=50.0, unit="mm") * 1e-3,
+            throat_length_m=t.number("throat_length_mm", DEFAULT_THROAT_LENGTH * 1e3, low=0.0, high=100.0, unit="mm") * 1e-3,
+            backbore_length_m=t.number("backbore_length_mm", DEFAULT_BACKBORE_LENGTH * 1e3, low=0.0, high=300.0, unit="mm") * 1e-3,
+        )
+    length = stations[-1, 0] * 1e3
+    pos = t.number("embouchure_position_mm", 0.0, low=0.0, high=length / 2, unit="mm")
+    dia_max = float(np.interp(pos * 1e-3, stations[:, 0], stations[:, 1])) * 1e3
+    dia = t.number("embouchure_diameter_mm", min(DEFAULT_EMBOUCHURE_DIAMETER * 1e3, dia_max),
+                   low=0.5, high=dia_max, unit="mm (at most the bore)")
+    chim = t.number("embouchure_chimney_mm", DEFAULT_EMBOUCHURE_CHIMNEY * 1e3, low=0.0, high=50.0, unit="mm")
+    outer = t.number("embouchure_outer_correction_mm", None, low=0.0, high=100.0, unit="mm")
+    return InputEnd("jet", embouchure_position_m=pos * 1e-3, embouchure_diameter_m=dia * 1e-3,
+                    embouchure_chimney_m=chim * 1e-3,
+                    embouchure_outer_correction_m=None if outer is None else outer * 1e-3)
+
+
+def load_instrument(source: str | Path) -> Instrument:
+    """An instrument by bundled name (see :func:`bundled_instruments`) or by path to a TOML file.
+
+    A value naming an existing file, or ending in ``.toml``, is read as a path; anything else is
+    looked up among the bundled instruments. Raises :class:`InputFileError` for unknown names
+    (listing the bundled ones) and for any bad key or value.
+    """
+    text = str(source)
+    path = Path(text)
+    if path.is_file() or text.endswith(".toml") or "/" in text:
+        return parse_instrument(read_toml(path, "instrument file"), path)
+    files = _bundled_files()
+    if text not in files:
+        import difflib
+
+        close = difflib.get_close_matches(text, list(files), n=1)
+        hint = f"; did you mean '{close[0]}'?" if close else ""
+        raise InputFileError(
+            f"unknown instrument '{text}'{hint} Bundled: {', '.join(sorted(files))}; or give a path to a .toml file"
+        )
+    resource = files[text]
+    import tomllib
+
+    data = tomllib.loads(resource.read_text(encoding="utf-8"))
+    return parse_instrument(data, f"drift/data/instruments/{resource.name}")
+
+
+def _bundled_files() -> dict:
+    folder = resources.files("drift.data.instruments")
+    return {entry.name[:-5]: entry for entry in folder.iterdir() if entry.name.endswith(".toml")}
+
+
+def bundled_instruments() -> list[tuple[str, str]]:
+    """(name, one-line description) of every bundled instrument, sorted by name."""
+    return [(name, load_instrument(name).description) for name in sorted(_bundled_files())]
+
+
+def _fmt(value: float, digits: int = 3) -> str:
+    text = f"{value:.{digits}f}".rstrip("0")
+    return text + "0" if text.endswith(".") else text
+
+
+def to_toml(instrument: Instrument, header: str = "") -> str:
+    """The instrument as instrument-file TOML text (the inverse of :func:`parse_instrument`).
+
+    Lengths are written in mm to 0.001 mm, volumes in mm^3; ``header`` (comment lines without
+    the leading ``#``) goes at the top.
+    """
+    ins = instrument
+    lines = [f"# {line}".rstrip() for line in header.splitlines()] if header else []
+    if lines:
+        lines.append("")
+    lines.append(f"name = {_quote(ins.name)}")
+    if ins.description:
+        lines.append(f"description = {_quote(ins.description)}")
+    lines.append(f"excitation = {_quote(ins.excitation)}")
+    if ins.material:
+        lines.append(f"material = {_quote(ins.material)}")
+    lines.append(f"reference_temperature_c = {_fmt(ins.reference_temperature_k - ZERO_CELSIUS, 2)}")
+    if ins.wall_m is not None:
+        lines.append(f"wall_mm = {_fmt(ins.wall_m * 1e3)}")
+    lines += ["", "[bore]", "stations_mm = ["]
+    lines += [f"    [{_fmt(x * 1e3)}, {_fmt(d * 1e3)}]," for x, d in ins.stations_m]
+    lines.append("]")
+    inp = ins.input_end
+    lines += ["", "[input]"]
+    if ins.excitation == "reed":
+        lines.append(f"added_volume_mm3 = {_fmt(inp.added_volume_m3 * 1e9, 1)}")
+    elif ins.excitation == "lips":
+        lines += [f"cup_volume_mm3 = {_fmt(inp.added_volume_m3 * 1e9, 1)}",
+                  f"throat_diameter_mm = {_fmt(inp.throat_diameter_m * 1e3)}",
+                  f"throat_length_mm = {_fmt(inp.throat_length_m * 1e3)}",
+                  f"backbore_length_mm = {_fmt(inp.backbore_length_m * 1e3)}"]
+    else:
+        lines += [f"embouchure_position_mm = {_fmt(inp.embouchure_position_m * 1e3)}",
+                  f"embouchure_diameter_mm = {_fmt(inp.embouchure_diameter_m * 1e3)}",
+                  f"embouchure_chimney_mm = {_fmt(inp.embouchure_chimney_m * 1e3)}"]
+        if inp.embouchure_outer_correction_m is not None:
+            lines.append(f"embouchure_outer_correction_mm = {_fmt(inp.embouchure_outer_correction_m * 1e3)}")
+    d = ins.design
+    lines += ["", "[design]",
+              f"temperature_c = {_fmt(d.temperature_k - ZERO_CELSIUS, 2)}",
+              f"relative_humidity_pct = {_fmt(d.relative_humidity * 100, 1)}",
+              f"pressure_kpa = {_fmt(d.pressure_pa / 1e3, 3)}",
+              f"co2_ppm = {_fmt(d.co2_fraction * 1e6, 1)}",
+              f"playing = {'true' if d.playing else 'false'}",
+              f"a4_hz = {_fmt(d.a4_hz, 2)}"]
+    if ins.tuning is not None:
+        t = ins.tuning
+        lines += ["", "[tuning]", f"position_mm = {_fmt(t.position_m * 1e3)}",
+                  f"min_change_mm = {_fmt(t.min_change_m * 1e3)}",
+                  f"max_change_mm = {_fmt(t.max_change_m * 1e3)}"]
+    for h in ins.holes:
+        lines += ["", "[[hole]]", f"name = {_quote(h.name)}", f"position_mm = {_fmt(h.position_m * 1e3)}",
+                  f"diameter_mm = {_fmt(h.diameter_m * 1e3)}", f"chimney_mm = {_fmt(h.chimney_m * 1e3)}"]
+    for n in ins.notes:
+        closed = ", ".join(_quote(c) for c in n.closed)
+        lines += ["", "[[note]]", f"name = {_quote(n.name)}", f"closed = [{closed}]", f"register = {n.register}"]
+    return "\n".join(lines) + "\n"
+
+
+def _quote(text: str) -> str:
+    return '"' + str(text).replace("\\", "\\\\").replace('"', '\\"') + '"'
