@@ -112,3 +112,22 @@ def test_bad_input_exits_2_without_traceback(drift_cli, pipe, args, needle):
     assert result.returncode == 2
     assert needle in result.stderr
     assert "Traceback" not in result.stderr
+
+
+@pytest.mark.parametrize("name", ["cylindrical-reed", "conical-reed", "side-blown-flute"])
+def test_each_bundled_instrument_rises_falls_and_settles(drift_cli, name):
+    doc = json.loads(drift_cli("warmup", name, "--plan", "play:8,rest:3,play:4", "--step", "60",
+                               "--format", "json", check_rc=0).stdout)
+    notes = doc["key_notes"]
+    cents = {(r["minute"], r["note"]): r["drift_cents"] for r in doc["rows"]}
+    for note in notes:
+        assert cents[(0.0, note)] < cents[(4.0, note)] < cents[(8.0, note)]   # a rise while played
+    # A fall in the rest: the warm breath stops and the wall cools. The lowest note of a wooden
+    # bore may first rise a little as the heavier, CO2-rich breath leaves its cool lower end, so
+    # the fall is asserted for the highest note and for the mean of all notes.
+    top = notes[-1]
+    assert cents[(11.0, top)] < cents[(9.0, top)] < cents[(8.0, top)]
+    every = sorted({r["note"] for r in doc["rows"]})
+    mean = {m: sum(cents[(m, n)] for n in every) / len(every) for m in (8.0, 9.0, 11.0)}
+    assert mean[11.0] < mean[9.0] < mean[8.0]
+    assert doc["settle_from_cold_minutes"] is not None and doc["settle_from_cold_minutes"] > 0.0
