@@ -65,6 +65,8 @@ DEFAULT_REFERENCE_TEMPERATURE = ZERO_CELSIUS + 20.0
 #: joint pushed in up to 2 mm or pulled out up to 6 mm).
 DEFAULT_MIN_CHANGE = -2.0e-3
 DEFAULT_MAX_CHANGE = 6.0e-3
+#: The bundled instrument commands use when none is named.
+DEFAULT_INSTRUMENT = "cylindrical-reed"
 #: Longest segment of the discretised bore [m]: short enough to follow a temperature profile.
 DEFAULT_MAX_SEGMENT = 0.02
 
@@ -740,3 +742,12 @@ def to_toml(instrument: Instrument, header: str = "") -> str:
 
 def _quote(text: str) -> str:
     return '"' + str(text).replace("\\", "\\\\").replace('"', '\\"') + '"'
+
+
+def instrument_record(instrument: Instrument) -> dict:
+    """A flat summary of an instrument for listings: name, description, excitation, material,
+    length_mm, holes, notes (counts)."""
+    return {"name": instrument.name, "description": instrument.description,
+            "excitation": instrument.excitation, "material": instrument.material,
+            "length_mm": instrument.length_m * 1e3, "holes": len(instrument.holes),
+            "notes": len(instrument.notes)}

@@ -188,5 +188,58 @@ def warmup_command(instrument, climate_name, plan_text, step_s, reference_name, 
     render.write_text(text, output_path)
 
 
+@main.command("resonances")
+@click.argument("instrument", required=False, default=None, metavar="[INSTRUMENT]")
+@click.option("--note", "note_name", default=None, metavar="NAME",
+              help="Only the fingerings of this note (scientific pitch notation, e.g. F#4).")
+@air_options
+@click.option("--lossless", is_flag=True, help="Drop wall and radiation losses (for validation).")
+@click.option("--count", type=click.IntRange(1, 20), default=5, show_default=True,
+              help="Resonances per fingering, 1 to 20.")
+@FORMAT_OPTION
+@reports_errors
+def resonances_command(instrument, note_name, temp_c, rh_pct, pressure_kpa, altitude_m, co2_ppm,
+                       lossless, count, fmt):
+    """Resonance frequencies of each fingering: impedance peaks (reed, lips) or dips (jet).
+
+    INSTRUMENT is a bundled instrument name or an instrument file (default: the bundled default,
+    see `drift instruments`). The bore is filled with uniform room air at the given condition and
+    its walls are at that temperature.
+    """
+    from drift import air, bore, pitch, render
+    from drift.constants import ZERO_CELSIUS
+
+    inst = bore.load_instrument(instrument or bore.DEFAULT_INSTRUMENT)
+    notes = inst.fingerings()
+    if note_name is not None:
+        chosen = tuple(n for n in notes if n.name == note_name)
+        if not chosen:
+            names = ", ".join(dict.fromkeys(n.name for n in notes if n.name)) or "none (one unnamed fingering)"
+            raise click.BadParameter(f"{inst.name} has no note '{note_name}'; its notes: {names}",
+                                     param_hint="--note")
+        notes = chosen
+    room = air.Room(temp_c + ZERO_CELSIUS, pressure_pa(pressure_kpa, altitude_m), rh_pct / 100.0, co2_ppm * 1e-6)
+    found = pitch.resonances(inst, air.BoreProfile.uniform(room), count=count, notes=notes, lossless=lossless)
+    named = bool(inst.notes)
+    doc = {"instrument": inst.name,
+           "fingerings": [{"note": n.name, "register": n.register if named else None,
+                           "resonances_hz": [float(f) for f in res]} for n, res in zip(notes, found)]}
+    text = {"json": render.to_json, "csv": render.resonances_csv, "table": render.resonances_table}[fmt](doc)
+    render.write_text(text, None)
+
+
+@main.command("instruments")
+@FORMAT_OPTION
+@reports_errors
+def instruments_command(fmt):
+    """List the bundled instruments with a one-line description."""
+    from drift import bore, render
+
+    rows = [bore.instrument_record(bore.load_instrument(name)) for name, _ in bore.bundled_instruments()]
+    text = {"json": lambda r: render.to_json({"instruments": r}), "csv": render.to_csv,
+            "table": render.instruments_table}[fmt](rows)
+    render.write_text(text, None)
+
+
 if __name__ == "__main__":  # pragma: no cover
     main()
