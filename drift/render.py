@@ -197,3 +197,37 @@ def _cents(value) -> str:
 def warmup_csv(doc: dict) -> str:
     """The ``drift warmup`` rows as CSV, long format (minute, state, note, frequency, drift)."""
     return to_csv(doc["rows"], ["minute", "state", "note", "frequency_hz", "drift_cents"])
+
+
+# --------------------------------------------------------------------------------------------
+# drift resonances, drift instruments
+# --------------------------------------------------------------------------------------------
+
+
+def resonances_table(doc: dict) -> str:
+    """The ``drift resonances`` document: one line per fingering, resonances in Hz."""
+    fingerings = doc["fingerings"]
+    width = max((len(f["resonances_hz"]) for f in fingerings), default=0)
+    body = [[f["note"] or "(all open)", "" if f["register"] is None else str(f["register"])]
+            + [f"{v:.2f}" for v in f["resonances_hz"]] + [""] * (width - len(f["resonances_hz"]))
+            for f in fingerings]
+    headers = ["note", "reg"] + [f"f{i + 1} Hz" for i in range(width)]
+    return f"{doc['instrument']}\n" + table(body, headers, colalign=("left", "right") + ("right",) * width)
+
+
+def resonances_csv(doc: dict) -> str:
+    """The ``drift resonances`` document as CSV, one row per resonance (long format)."""
+    rows = [{"instrument": doc["instrument"], "note": f["note"], "register": f["register"], "n": i + 1,
+             "frequency_hz": v}
+            for f in doc["fingerings"] for i, v in enumerate(f["resonances_hz"])]
+    return to_csv(rows, ["instrument", "note", "register", "n", "frequency_hz"])
+
+
+def instruments_table(rows: list[dict]) -> str:
+    """The bundled instruments, one line each."""
+    import textwrap
+
+    body = [[r["name"], r["excitation"], f"{r['length_mm']:.0f}", str(r["notes"]),
+             textwrap.shorten(r["description"], 56)] for r in rows]
+    return table(body, headers=["instrument", "excitation", "mm", "notes", "description"],
+                 colalign=("left", "left", "right", "right", "left"))
