@@ -131,3 +131,15 @@ def test_each_bundled_instrument_rises_falls_and_settles(drift_cli, name):
     mean = {m: sum(cents[(m, n)] for n in every) / len(every) for m in (8.0, 9.0, 11.0)}
     assert mean[11.0] < mean[9.0] < mean[8.0]
     assert doc["settle_from_cold_minutes"] is not None and doc["settle_from_cold_minutes"] > 0.0
+
+
+def test_default_instrument_and_design_climate(drift_cli):
+    from drift import bore
+
+    doc = json.loads(drift_cli("warmup", "--plan", "play:1", "--step", "60", "--format", "json",
+                               check_rc=0).stdout)
+    instrument = bore.load_instrument(bore.DEFAULT_INSTRUMENT)
+    assert doc["instrument"] == instrument.name
+    assert doc["climate"].startswith("design room")
+    assert doc["reference"].startswith("design condition")
+    assert doc["plan"] == [{"state": "play", "minutes": 1.0}]
