@@ -318,7 +318,9 @@ def nusselt_mixed(forced, natural, exponent: float = 4.0):
     n = 4 for cylinders in transverse flow (Churchill 1977; Incropera et al. 2007, Eq. 9.66 and
     the text beside it; from memory), the flows taken as assisting.
     """
-    return (np.asarray(forced, dtype=float) ** exponent + np.asarray(natural, dtype=float) ** exponent) ** (1.0 / exponent)
+    forced = np.asarray(forced, dtype=float)
+    natural = np.asarray(natural, dtype=float)
+    return (forced**exponent + natural**exponent) ** (1.0 / exponent)
 
 
 def radiative_coefficient(surface_k, surroundings_k, emissivity):
@@ -569,7 +571,8 @@ def parse_plan(text: str) -> tuple[Phase, ...]:
         try:
             value = float(minutes)
         except ValueError:
-            raise OutOfRangeError(f"plan part '{part}': '{minutes.strip()}' is not a number of minutes") from None
+            raise OutOfRangeError(
+                f"plan part '{part}': '{minutes.strip()}' is not a number of minutes") from None
         phases.append(Phase(state, value * 60.0))
     return tuple(phases)
 
@@ -668,15 +671,18 @@ class _Model:
         self.ndot_dry = w * self.ndot_dry_in
         self.mdot_cp = self.mdot * self.cp
         self.exit_share = w - np.append(w[1:], 0.0)          # flow leaving after each segment
-        ua = self._inner_conductance(wall, w) * blowing.heat_transfer_factor
-        with np.errstate(divide="ignore"):
-            ua_eff = np.where(ua > 0.0, 1.0 / (1.0 / np.where(ua > 0, ua, 1.0) + self.r_inner), 0.0)
-        with np.errstate(divide="ignore", invalid="ignore"):
-            self.ntu = np.where(self.mdot_cp > 0.0, ua_eff / np.where(self.mdot_cp > 0, self.mdot_cp, 1.0), 0.0)
-        self.decay = np.exp(-self.ntu)
-        with np.errstate(divide="ignore", invalid="ignore"):
-            self.mean_share = np.where(self.ntu > 1e-12, (1.0 - self.decay) / np.where(self.ntu > 1e-12, self.ntu, 1.0), 1.0)
         self.flows = self.mdot > 0.0
+        ua = self._inner_conductance(wall, w) * blowing.heat_transfer_factor
+        # Convection in series with the conduction to the first layer's mid-radius.
+        ua_eff = np.zeros(n)
+        ua_eff[self.flows] = 1.0 / (1.0 / ua[self.flows] + self.r_inner[self.flows])
+        self.ntu = np.zeros(n)
+        self.ntu[self.flows] = ua_eff[self.flows] / self.mdot_cp[self.flows]
+        self.decay = np.exp(-self.ntu)
+        # Mean air temperature over a segment: T_w + (T_in - T_w) (1 - e^-NTU) / NTU (-> 1 as NTU -> 0).
+        self.mean_share = np.ones(n)
+        big = self.ntu > 1e-12
+        self.mean_share[big] = (1.0 - self.decay[big]) / self.ntu[big]
 
     def _inner_conductance(self, wall: Wall, w: np.ndarray) -> np.ndarray:
         """Air-to-inner-surface conductance of each segment [W/K].
@@ -1105,8 +1111,8 @@ def instrument_wall(instrument, segment_length_m: float = 0.02) -> Wall:
     def share(x):
         return np.where(x >= inlet, flow_fraction_from_exits(x, exits), 0.0)
 
-    return wall_from_stations(instrument.stations_m, instrument.wall_thickness_m, instrument_material(instrument),
-                              segment_length_m, share)
+    return wall_from_stations(instrument.stations_m, instrument.wall_thickness_m,
+                              instrument_material(instrument), segment_length_m, share)
 
 
 def instrument_blowing(instrument) -> Blowing:
@@ -1124,8 +1130,8 @@ def instrument_timeline(instrument, room: air.Room, plan: Sequence[Phase], times
                         breath: air.Breath = air.DEFAULT_BREATH, blowing: Blowing | None = None,
                         initial: ThermalState | None = None) -> list[ThermalState]:
     """:func:`timeline` of an instrument (its wall from :func:`instrument_wall`)."""
-    return timeline(instrument_wall(instrument), room, plan, times_s, blowing or instrument_blowing(instrument),
-                    breath, initial)
+    blowing = blowing or instrument_blowing(instrument)
+    return timeline(instrument_wall(instrument), room, plan, times_s, blowing, breath, initial)
 
 
 def bore_profile(instrument, room: air.Room, playing: bool = True, minutes_played: float | None = None,
@@ -1275,7 +1281,8 @@ class Warmup:
                         "minutes_to_settle": None if t is None else (t - s) / 60.0}
                        for i, s, t in self.settle],
             "key_notes": [self.notes[i] for i in self.key_notes()],
-            "settle_from_cold_minutes": None if self.settle_from_cold_s is None else self.settle_from_cold_s / 60.0,
+            "settle_from_cold_minutes": (None if self.settle_from_cold_s is None
+                                         else self.settle_from_cold_s / 60.0),
             "inlet_position_mm": round(self.inlet_position_m * 1e3, 3),
         }
 
@@ -1371,11 +1378,13 @@ def warmup(instrument, room: air.Room, plan: Sequence[Phase], step_s: float = 30
         end = start + phase.duration_s
         if phase.state == "play":
             # A boundary time belongs to the phase before it (see :func:`timeline`).
-            inside = ((times > start + 1e-9) | (times <= 1e-9 if index == 0 else False)) & (times <= end + 1e-9)
+            after_start = (times > start + 1e-9) | ((times <= 1e-9) if index == 0 else False)
+            inside = after_start & (times <= end + 1e-9)
             t = settle_time(times[inside], steady_cents[inside], np.zeros(len(notes)), tolerance_cents)
             settle.append((index, start, t))
         start = end
-    from_cold = settle_from_cold(instrument, room, steady_hz, tolerance_cents, breath, blowing, notes, progress)
+    from_cold = settle_from_cold(instrument, room, steady_hz, tolerance_cents, breath, blowing, notes,
+                                 progress)
     wall = instrument_wall(instrument)
     inlet = wall.positions_m[int(np.argmax(wall.flow_fraction > 0.0))]
     return Warmup(labels, times, states, freqs, ref, drift, steady_hz, steady, settle, tolerance_cents,
