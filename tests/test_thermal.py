@@ -502,3 +502,45 @@ def test_settle_from_cold_brackets_the_band(tmp_path):
 
     assert worst(t - 30.0) > 2.0 > worst(t + 30.0)
     assert thermal.settle_from_cold(instrument, ROOM, steady_hz, 100.0) == 0.0
+
+
+def test_correlations_are_vectorised_and_propagate_nan():
+    values = np.array([[0.0, 10.0], [100.0, np.nan]])
+    for function, args in [(thermal.nusselt_hausen_1943, (values,)),
+                           (thermal.nusselt_churchill_chu_1975, (values, 0.71)),
+                           (thermal.nusselt_churchill_bernstein_1977, (values, 0.71)),
+                           (thermal.latent_heat_condensation, (values + 280.0,))]:
+        out = function(*args)
+        assert out.shape == values.shape
+        assert np.isnan(out[1, 1]) and np.all(np.isfinite(out.ravel()[:3]))
+    assert np.isnan(thermal.nusselt_gnielinski_1976(np.nan, 0.71))
+
+
+def test_wall_refuses_nan_and_mismatched_arrays():
+    good = dict(positions_m=np.array([0.01, 0.03]), lengths_m=np.array([0.02, 0.02]),
+                inner_radius_m=np.array([0.0075, 0.0075]), thickness_m=np.array([0.001, 0.001]),
+                material=BRASS, flow_fraction=np.array([1.0, 1.0]))
+    thermal.Wall(**good)
+    with pytest.raises(OutOfRangeError, match="finite"):
+        thermal.Wall(**{**good, "inner_radius_m": np.array([0.0075, np.nan])})
+    with pytest.raises(OutOfRangeError, match="one value per segment"):
+        thermal.Wall(**{**good, "thickness_m": np.array([0.001])})
+
+
+def test_design_and_climate_profiles(tmp_path):
+    from drift import climate
+
+    played = bore.load_instrument(_write_instrument(tmp_path, extra="[design]\nplaying = true\ntemperature_c = 22.0"))
+    design = thermal.design_profile(played)
+    steady = thermal.instrument_steady_state(played, played.design.room()).profile
+    np.testing.assert_allclose(design.temperature_k, steady.temperature_k)
+    assert design.room.temperature_k == pytest.approx(295.15)
+    resting = bore.load_instrument(_write_instrument(tmp_path))
+    np.testing.assert_array_equal(thermal.design_profile(resting).temperature_k, 293.15)
+
+    c = climate.parse_climate({"name": "c", "air": {"temperature_c": 20.0, "relative_humidity_pct": 50},
+                               "player": {"minutes_played": 3}}, "c.toml")
+    from_climate = thermal.climate_profile(resting, c)
+    direct = thermal.bore_profile(resting, c.room, True, 3.0)
+    np.testing.assert_allclose(from_climate.wall_temperature_k, direct.wall_temperature_k)
+    assert np.all(from_climate.wall_temperature_k > 293.15)
