@@ -135,6 +135,77 @@ def climates_command(fmt):
     render.write_text(text, None)
 
 
+
+class LazyProgress:
+    """A click progress bar on stderr that appears only once a run has taken over a second, and
+    only when stderr is a terminal (it never mixes into redirected output)."""
+
+    def __init__(self, total: int, label: str):
+        import time
+
+        self.total, self.label, self.done, self.bar = total, label, 0, None
+        self.start = time.monotonic()
+        self.enabled = sys.stderr.isatty()
+
+    def __call__(self):
+        import time
+
+        self.done += 1
+        if not self.enabled:
+            return
+        if self.bar is None and time.monotonic() - self.start > 1.0:
+            self.bar = click.progressbar(length=self.total, label=self.label, file=sys.stderr)
+            self.bar.__enter__()
+            self.bar.update(self.done - 1)
+        if self.bar is not None:
+            self.bar.update(1)
+
+    def close(self):
+        if self.bar is not None:
+            self.bar.__exit__(None, None, None)
+
+
+INSTRUMENT_ARGUMENT = click.argument("instrument", required=False, default=None, metavar="[INSTRUMENT]")
+OUTPUT_OPTION = click.option("--output", "output", type=click.Path(dir_okay=False, writable=True), default=None,
+                             help="Write the result to this file instead of standard output.")
+
+
+@main.command("chart")
+@INSTRUMENT_ARGUMENT
+@click.option("--climate", "climate_names", multiple=True, metavar="CLIMATE",
+              help="Bundled climate name or climate file; repeat for several. Default: every bundled climate.")
+@click.option("--reference", "reference_name", default=None, metavar="CLIMATE",
+              help="Condition the drift is measured from. Default: the instrument's [design] condition.")
+@click.option("--a4", "a4_hz", type=click.FloatRange(380.0, 480.0), default=440.0, show_default=True,
+              help="Pitch of A4 for the offset from equal temperament [Hz] (ISO 16: 440).")
+@click.option("--tolerance", "tolerance_cents", type=click.FloatRange(0.0, 100.0, min_open=True), default=5.0,
+              show_default=True,
+              help="In-tune threshold [cents] after the joint change (5 cents is common practice).")
+@FORMAT_OPTION
+@OUTPUT_OPTION
+@reports_errors
+def chart_command(instrument, climate_names, reference_name, a4_hz, tolerance_cents, fmt, output):
+    """Drift of every note across climates, with the tuning-joint change for each.
+
+    INSTRUMENT is a bundled instrument name or an instrument file (default: the bundled
+    default instrument, see `drift instruments`).
+    """
+    from drift import bore, chart, climate, render
+
+    inst = bore.load_instrument(instrument or bore.DEFAULT_INSTRUMENT)
+    climates = ([climate.load_climate(c) for c in climate_names] if climate_names
+                else climate.bundled_climates())
+    reference = climate.load_climate(reference_name) if reference_name else None
+    progress = LazyProgress(len(climates) + 1, "computing")
+    try:
+        result = chart.drift_chart(inst, climates, reference, a4_hz, tolerance_cents, progress)
+    finally:
+        progress.close()
+    doc = result.document()
+    text = {"json": render.to_json, "csv": render.chart_csv, "table": render.chart_table}[fmt](doc)
+    render.write_text(text, output)
+
+
 @main.command("warmup")
 @click.argument("instrument", required=False, default=None, metavar="[INSTRUMENT]")
 @click.option("--climate", "climate_name", default=None, metavar="CLIMATE",

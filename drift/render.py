@@ -11,6 +11,7 @@ import json
 import math
 import os
 import tempfile
+import textwrap
 from pathlib import Path
 
 FORMATS = ("table", "json", "csv")
@@ -125,13 +126,91 @@ def _player_label(row: dict) -> str:
 
 def climates_table(rows: list[dict]) -> str:
     """The bundled climates, one line each, fitting 100 columns."""
-    import textwrap
-
     body = [[r["name"], f"{r['temperature_c']:.1f}", f"{r['relative_humidity_pct']:.0f}",
              f"{r['pressure_kpa']:.1f}", _player_label(r), textwrap.shorten(r["description"], 48)]
             for r in rows]
     return table(body, headers=["climate", "°C", "RH %", "kPa", "played", "description"],
                  colalign=("left", "right", "right", "right", "left", "left"))
+
+
+# --------------------------------------------------------------------------------------------
+# drift chart
+# --------------------------------------------------------------------------------------------
+
+#: Width budget of a table [characters].
+TABLE_WIDTH = 100
+
+
+def _header(name: str, width: int) -> str:
+    """A column header wrapped onto lines of at most ``width`` characters (at hyphens first)."""
+    parts = name.replace("-", "- ").split()
+    return "\n".join(textwrap.wrap(" ".join(parts), width, break_long_words=True)).replace("- ", "-")
+
+
+def _column_blocks(first_width: int, headers: list[str]) -> list[range]:
+    """Split the columns into blocks that fit :data:`TABLE_WIDTH` beside the first column.
+
+    A column takes its widest header line plus tabulate's padding of 2 (multiline headers), plus
+    2 characters between columns.
+    """
+    blocks, start, used = [], 0, first_width
+    for i, header in enumerate(headers):
+        width = max(len(line) for line in header.split("\n")) + 4
+        if used + width > TABLE_WIDTH and i > start:
+            blocks.append(range(start, i))
+            start, used = i, first_width
+        used += width
+    blocks.append(range(start, len(headers)))
+    return blocks
+
+
+def _signed(value, digits=1) -> str:
+    if value is None or not math.isfinite(value):
+        return "—"
+    return f"{value:+.{digits}f}"
+
+
+def chart_table(doc: dict) -> str:
+    """The chart as text: notes as rows, climates as columns (drift in cents, one decimal), the
+    summary lines under each block of columns, then warnings and the notes still out of tune."""
+    notes = list(dict.fromkeys(r["note"] for r in doc["rows"]))
+    climates = doc["climates"]
+    drift = {(r["note"], r["climate"]): r["drift_cents"] for r in doc["rows"]}
+    summary = {s["climate"]: s for s in doc["summary"]}
+    width = 9
+    labels = ["mean", "spread", "joint mm", "spread after", "out of tune"]
+    first = max(len(x) for x in notes + labels)
+    out = [f"Drift of {doc['instrument']} in cents against {doc['reference']} "
+           f"(A4 = {doc['a4_hz']:g} Hz; + sharp, − flat)", ""]
+    headers = [_header(c, width) for c in climates]
+    for block in _column_blocks(first + 2, headers):
+        names = [climates[i] for i in block]
+        rows = [[n] + [_signed(drift[(n, c)]) for c in names] for n in notes]
+        rows.append(["", *[""] * len(names)])
+        rows.append(["mean"] + [_signed(summary[c]["mean_drift_cents"]) for c in names])
+        rows.append(["spread"] + [f"{summary[c]['spread_cents']:.1f}" for c in names])
+        rows.append(["joint mm"] + [_signed(summary[c]["adjust_mm"]) for c in names])
+        rows.append(["spread after"] + [f"{summary[c]['residual_spread_cents']:.1f}" for c in names])
+        rows.append(["out of tune"] + [str(len(summary[c]["out_of_tolerance"])) for c in names])
+        out.append(table(rows, ["note"] + [headers[i] for i in block],
+                         colalign=("left",) + ("right",) * len(names)))
+    notes_text = [f"joint mm: + pull the tuning joint out, − push it in, to centre the mean drift. "
+                  f"out of tune: notes beyond ±{doc['tolerance_cents']:g} cents after that change."]
+    for s in doc["summary"]:
+        if s["out_of_tolerance"]:
+            notes_text.append(f"{s['climate']}: still out after the change: {', '.join(s['out_of_tolerance'])}")
+        if s.get("warning"):
+            notes_text.append(f"{s['climate']}: warning: {s['warning']}")
+    out += [textwrap.fill(line, TABLE_WIDTH, subsequent_indent="    ") for line in notes_text]
+    return "\n".join(out) + "\n"
+
+
+CHART_COLUMNS = ["note", "register", "climate", "frequency_hz", "drift_cents", "offset_from_equal_cents"]
+
+
+def chart_csv(doc: dict) -> str:
+    """The chart rows in long format (one line per note and climate)."""
+    return to_csv(doc["rows"], CHART_COLUMNS)
 
 
 # --------------------------------------------------------------------------------------------
@@ -225,8 +304,6 @@ def resonances_csv(doc: dict) -> str:
 
 def instruments_table(rows: list[dict]) -> str:
     """The bundled instruments, one line each."""
-    import textwrap
-
     body = [[r["name"], r["excitation"], f"{r['length_mm']:.0f}", str(r["notes"]),
              textwrap.shorten(r["description"], 56)] for r in rows]
     return table(body, headers=["instrument", "excitation", "mm", "notes", "description"],

@@ -1,0 +1,109 @@
+"""The drift chart against published sound-speed physics and its own invariants."""
+
+import math
+
+import numpy as np
+import pytest
+
+from drift import air, bore, chart
+from drift.climate import Climate, Player
+from drift.constants import ZERO_CELSIUS
+from references import cramer_sound_speed, davis_water_fraction
+
+REST = Player(playing=False)
+
+
+@pytest.fixture(scope="module")
+def instrument():
+    return bore.load_instrument(bore.DEFAULT_INSTRUMENT)
+
+
+def resting(name, t_c, rh=0.0, player=REST):
+    return Climate(name, air.Room(t_c + ZERO_CELSIUS, 101325.0, rh, 420e-6), player)
+
+
+def drifts(result, climate_name):
+    return np.array([r.drift_cents for r in result.rows if r.climate == climate_name])
+
+
+def cramer_cents(t1, rh1, t0, rh0, p=101325.0):
+    """1200 log2(c1/c0) with c from Cramer (1993), Eq. 15, water from Davis (1992)."""
+    def c(t, rh):
+        x_w = davis_water_fraction(t, p, rh)
+        return cramer_sound_speed(t, p, x_w, 420e-6 * (1 - x_w))
+    return 1200 * math.log2(c(t1, rh1) / c(t0, rh0))
+
+
+def test_temperature_shift_follows_sound_speed(instrument):
+    """At rest in dry air, 20 -> 30 °C: every note shifts by 1200 log2(c30/c20) within 1 cent, c from
+    Cramer (1993); wall losses and thermal expansion add only tenths of a cent."""
+    result = chart.drift_chart(instrument, [resting("warm", 30.0)], reference=resting("cool", 20.0))
+    expected = cramer_cents(30.0, 0.0, 20.0, 0.0)
+    assert np.all(np.abs(drifts(result, "warm") - expected) < 1.0), (expected, drifts(result, "warm"))
+
+
+def test_humidity_shift_follows_sound_speed(instrument):
+    """At rest at 30 °C, 0 -> 100 % RH: every note follows the sound-speed ratio of Cramer (1993)
+    within 1 cent."""
+    result = chart.drift_chart(instrument, [resting("wet", 30.0, 1.0)], reference=resting("dry", 30.0, 0.0))
+    expected = cramer_cents(30.0, 1.0, 30.0, 0.0)
+    assert np.all(np.abs(drifts(result, "wet") - expected) < 1.0), (expected, drifts(result, "wet"))
+
+
+def test_rule_of_thumb_three_cents_per_degree(instrument):
+    """About 3 cents per °C near room temperature (common practice)."""
+    result = chart.drift_chart(instrument, [resting("21", 21.0, 0.5)], reference=resting("19", 19.0, 0.5))
+    per_degree = drifts(result, "21") / 2.0
+    assert np.all((per_degree > 2.5) & (per_degree < 3.5)), per_degree
+
+
+def test_reference_drift_is_zero_and_drift_is_antisymmetric(instrument):
+    a, b = resting("a", 12.0, 0.3), resting("b", 27.0, 0.8)
+    ab = chart.drift_chart(instrument, [a, b], reference=a)
+    ba = chart.drift_chart(instrument, [a], reference=b)
+    assert np.all(drifts(ab, "a") == 0.0)
+    np.testing.assert_allclose(drifts(ab, "b"), -drifts(ba, "a"), atol=1e-9)
+
+
+def test_joint_change_centres_the_mean_drift_when_applied(instrument):
+    warm = resting("warm", 28.0, 0.5)
+    result = chart.drift_chart(instrument, [warm], reference=resting("cool", 18.0, 0.5))
+    s = result.summary[0]
+    assert s.mean_drift_cents > 10 and s.adjust_mm > 0          # sharp: pull the joint out
+    changed = dataclass_free(instrument).with_joint_change(s.adjust_mm * 1e-3)
+    reference_hz = chart.frequencies(instrument, chart.bore_profile(instrument, resting("cool", 18.0, 0.5)))
+    applied = chart.frequencies(changed, chart.bore_profile(instrument, warm))
+    assert abs(np.mean(1200 * np.log2(applied / reference_hz))) < 0.01
+    assert s.residual_spread_cents == pytest.approx(np.ptp(s.adjusted_drift_cents))
+
+
+def dataclass_free(instrument):
+    import dataclasses
+
+    return dataclasses.replace(instrument, tuning=dataclasses.replace(
+        instrument.tuning, min_change_m=-0.06, max_change_m=0.06))
+
+
+def test_played_steady_state_is_sharp_and_short_tube_notes_most(instrument):
+    """Played to steady state in a 20 °C room, every note is sharp against the cold instrument, and
+    the short-tube notes of the first register more than the lowest note: the breath warms the
+    input end most (the bore gradient; common practice)."""
+    room = 20.0
+    played = resting("played", room, 0.5, Player(playing=True))
+    result = chart.drift_chart(instrument, [played], reference=resting("cold", room, 0.5))
+    d = drifts(result, "played")
+    assert np.all(d > 0)
+    first = [i for i, n in enumerate(instrument.notes) if n.register == 1]
+    lowest = min(first, key=lambda i: result.rows[i].frequency_hz)
+    highest = max(first, key=lambda i: result.rows[i].frequency_hz)
+    assert d[highest] > d[lowest]
+
+
+def test_warning_when_the_joint_cannot_reach(instrument):
+    import dataclasses
+
+    tight = dataclasses.replace(instrument, tuning=dataclasses.replace(
+        instrument.tuning, min_change_m=-0.0005, max_change_m=0.0005))
+    result = chart.drift_chart(tight, [resting("hot", 35.0, 0.5)], reference=resting("cold", 5.0, 0.5))
+    s = result.summary[0]
+    assert s.adjust_mm > 0.5 and "exceeds what the joint allows" in s.warning
