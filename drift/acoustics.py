@@ -166,7 +166,7 @@ def propagation_keefe1984(frequency_hz, radius_m, sound_speed, density, viscosit
         Z = (omega rho / S) [sqrt2/r_v + 3/r_v^2 + j (1 + sqrt2/r_v)]
         Y = (omega S / (rho c^2)) [(gamma-1)(sqrt2/r_t - 1/r_t^2) + j (1 + (gamma-1) sqrt2/r_t)]
 
-    (Keefe 1984, Eqs. 8-9; here re-derived as the two leading terms of the large-argument
+    (Keefe 1984, Eqs. 8-9, equation numbers from memory; here re-derived as the two leading terms of the large-argument
     expansion of the Zwikker-Kosten functions). Kept as an independent check of
     :func:`propagation_zk`; valid to about 1 % for r_v > 10.
     """
@@ -187,7 +187,7 @@ def propagation_keefe1984(frequency_hz, radius_m, sound_speed, density, viscosit
 def cylinder_matrix(gamma_prop, zc, length_m):
     """Transfer matrix (A, B, C, D) of a cylinder [-, Pa s/m^3, m^3/(Pa s), -].
 
-    A = D = cosh(Gamma L), B = Zc sinh(Gamma L), C = sinh(Gamma L) / Zc (Keefe 1984 [2], Eq. 5;
+    A = D = cosh(Gamma L), B = Zc sinh(Gamma L), C = sinh(Gamma L) / Zc (Keefe 1984 [2], Eq. 5, from memory;
     Chaigne & Kergomard 2016 [8], Sec. 5.5, from memory). det = A D - B C = 1 for any Gamma.
     """
     gl = np.asarray(gamma_prop) * np.asarray(length_m)
@@ -248,7 +248,7 @@ def radiation_unflanged(frequency_hz, radius_m, sound_speed, density, model: str
 
     ``"norris-sheng-1989"`` (default): from the reflection coefficient R = -|R| exp(-2jk l),
     Zr = Zc (1 + R) / (1 - R), with the fits to Levine & Schwinger's exact solution quoted by
-    Silva et al. (2009) [5] (Eqs. 13-14 there, coefficients from memory):
+    Silva et al. (2009) [5] (Eqs. 13-14 there; equation numbers and coefficients from memory):
 
         |R| = (1 + 0.2 ka - 0.084 (ka)^2) / (1 + 0.2 ka + (0.5 - 0.084)(ka)^2)
         l / a = 0.6133 (1 + 0.044 (ka)^2) / (1 + 0.19 (ka)^2)
@@ -282,7 +282,7 @@ def hole_corrections(hole_radius_m, bore_radius_m, chimney_m):
     """Length corrections of a side hole [m]: inner t_i, series open t_a^o and closed t_a^c.
 
     With delta = b/a (hole over bore radius) and chimney height t, fits to finite-element
-    results of Lefebvre & Scavone (2012) [6] (Eqs. 9, 11 and 12 there; coefficients from
+    results of Lefebvre & Scavone (2012) [6] (Eqs. 9, 11 and 12 there; equation numbers and coefficients from
     memory):
 
         t_i   = b (0.822 - 0.095 d - 1.566 d^2 + 2.138 d^3 - 1.640 d^4 + 0.502 d^5)
@@ -290,7 +290,7 @@ def hole_corrections(hole_radius_m, bore_radius_m, chimney_m):
         t_a^c = b d^2 (-0.12 - 0.17 tanh(2.4 t / b))
 
     The series corrections are negative lengths (the hole shortens the main bore's inertance),
-    the form of Dubos et al. (1999) [7], Eq. 74.
+    the form of Dubos et al. (1999) [7], Eq. 74 (from memory).
     """
     b = np.asarray(hole_radius_m, dtype=float)
     d = b / np.asarray(bore_radius_m, dtype=float)

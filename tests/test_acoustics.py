@@ -205,3 +205,19 @@ def test_scaling_a_lossless_bore_scales_frequencies(s, r2, dh):
     f1 = first(build(1.0), count=3, lossless=True, max_segment_m=0.02)
     fs = first(build(s), count=3, lossless=True, max_segment_m=0.02 * s)
     assert np.allclose(fs * s, f1, rtol=1e-6)
+
+
+def test_lip_mouthpiece_and_reed_volume_lower_the_resonances():
+    # An added compliance at a pressure-driven input lowers every peak (Benade 1976, Ch. 20:
+    # a mouthpiece cavity acts as extra length at low frequency); a lip mouthpiece's throat and
+    # backbore sit before position 0.
+    tube = [[0, 12], [1000, 12], [1200, 60]]
+    plain = first(make(tube), count=3)
+    reed = first(bore.parse_instrument({"name": "r", "excitation": "reed", "bore": {"stations_mm": tube},
+                                        "input": {"added_volume_mm3": 3000}}, "r.toml"), count=3)
+    lips = bore.parse_instrument({"name": "l", "excitation": "lips", "bore": {"stations_mm": tube}}, "l.toml")
+    seg = lips.segments()
+    assert seg.start_m[0] == pytest.approx(-(bore.DEFAULT_THROAT_LENGTH + bore.DEFAULT_BACKBORE_LENGTH))
+    assert seg.radius_in_m[0] == pytest.approx(bore.DEFAULT_THROAT_DIAMETER / 2)
+    brass = first(lips, count=3)
+    assert np.all(reed < plain) and np.all(brass < plain)
