@@ -24,7 +24,7 @@ ISO 2533:1975. Standard Atmosphere.
 from __future__ import annotations
 
 import functools
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, fields
 
 import numpy as np
 
@@ -88,13 +88,24 @@ def _water_state():
     return CP.AbstractState("HEOS", "Water")
 
 
-@functools.lru_cache(maxsize=4096)
-def _vapour_pressure_liquid(temperature_k: float) -> float:
+#: Grid of the saturation-pressure spline over liquid water [K]: 0 to 100 °C every 0.25 K.
+_LIQUID_GRID_K = np.linspace(K.ZERO_CELSIUS, K.ZERO_CELSIUS + 100.0, 401)
+
+
+@functools.cache
+def _liquid_spline():
+    """Cubic spline of ln p_sat over liquid water, fitted to IAPWS-95 values from CoolProp on
+    :data:`_LIQUID_GRID_K`; it reproduces them to better than 1e-7 relative between the nodes
+    (tests/test_air.py checks it against CoolProp at off-grid temperatures)."""
     import CoolProp.CoolProp as CP
+    from scipy.interpolate import CubicSpline
 
     water = _water_state()
-    water.update(CP.QT_INPUTS, 0.0, temperature_k)
-    return water.p()
+    values = []
+    for t in _LIQUID_GRID_K:
+        water.update(CP.QT_INPUTS, 0.0, float(t))
+        values.append(water.p())
+    return CubicSpline(_LIQUID_GRID_K, np.log(values))
 
 
 def sublimation_pressure(temperature_k):
@@ -112,14 +123,15 @@ def saturation_vapour_pressure(temperature_k):
     """Saturation pressure of water vapour [Pa] at temperature [K].
 
     Over liquid water at and above 0 °C: IAPWS-95 (Wagner & Pruss 2002) through CoolProp's
-    water. Over ice below 0 °C: :func:`sublimation_pressure` (Wagner et al. 2011).
+    water, read from a cubic spline of ln p_sat on a 0.25 K grid (:func:`_liquid_spline`). Over
+    ice below 0 °C: :func:`sublimation_pressure` (Wagner et al. 2011).
     """
     t = np.asarray(temperature_k, dtype=float)
     flat = t.ravel()
     out = np.empty_like(flat)
     cold = flat < K.ZERO_CELSIUS
     out[cold] = sublimation_pressure(flat[cold])
-    out[~cold] = [_vapour_pressure_liquid(float(v)) for v in flat[~cold]]
+    out[~cold] = np.exp(_liquid_spline()(flat[~cold]))
     return out.reshape(t.shape)
 
 
@@ -438,35 +450,38 @@ class BoreProfile:
         """Wall temperature [K] at positions [m]."""
         return self._interp(self.wall_temperature_k, positions_m)
 
-    def air_at(self, positions_m) -> AirState:
-        """The gas (:class:`AirState`) at positions [m] along the bore, through :func:`air_state`."""
+    @functools.cached_property
+    def sampled_air(self) -> AirState:
+        """The gas at the profile's own sample positions, through :func:`air_state` (computed once)."""
         return air_state(
-            self._interp(self.temperature_k, positions_m),
+            self.temperature_k,
             self.room.pressure_pa,
             self.room.temperature_k,
             self.room.relative_humidity,
             self.room.co2_fraction,
-            np.clip(self._interp(self.breath_fraction, positions_m), 0.0, 1.0),
+            np.clip(self.breath_fraction, 0.0, 1.0),
             self.breath,
         )
 
+    def air_at(self, positions_m) -> AirState:
+        """The gas (:class:`AirState`) at positions [m] along the bore.
 
-def state_record(state: AirState, breath_fraction: float = 0.0) -> dict:
-    """One scalar :class:`AirState` as a flat dict in boundary units (the ``drift air`` JSON keys)."""
-    props = state.properties
-    x = np.asarray(state.mole_fractions, dtype=float)
-    return {
-        "temperature_c": float(state.temperature) - K.ZERO_CELSIUS,
-        "pressure_kpa": float(state.pressure) * 1e-3,
-        "relative_humidity_pct": float(state.relative_humidity) * 100.0,
-        "breath_fraction": float(breath_fraction),
-        "mole_fractions": {s: float(v) for s, v in zip(K.SPECIES, x)},
-        "sound_speed_m_s": float(props.sound_speed),
-        "density_kg_m3": float(props.density),
-        "viscosity_pa_s": float(props.viscosity),
-        "thermal_conductivity_w_m_k": float(props.conductivity),
-        "heat_capacity_j_kg_k": float(props.cp),
-        "heat_capacity_ratio": float(props.gamma),
-        "prandtl_number": float(props.prandtl),
-        "condensed": bool(state.condensed),
-    }
+        The real-gas state is computed once at the profile's samples (:attr:`sampled_air`) and its
+        temperature, composition and properties are interpolated linearly to ``positions_m``. The
+        properties are smooth in temperature and composition, so between samples a few
+        centimetres and a kelvin or two apart this differs from a fresh evaluation by far less
+        than the model's own uncertainty (tests/test_air.py bounds it), and moving positions (a
+        joint change, an expanded bore) costs no new CoolProp states.
+        """
+        x = np.asarray(positions_m, dtype=float)
+        s = self.sampled_air
+        if self.positions_m.size == 1:
+            def at(values):
+                return np.broadcast_to(np.asarray(values)[0], x.shape).copy()
+        else:
+            def at(values):
+                return np.interp(x, self.positions_m, values)
+        props = GasProperties(*(at(getattr(s.properties, f.name)) for f in fields(GasProperties)))
+        fractions = np.stack([at(s.mole_fractions[:, i]) for i in range(5)], axis=-1)
+        return AirState(at(s.temperature), at(s.pressure), fractions, at(s.condensed.astype(float)) > 0.5,
+                        props)

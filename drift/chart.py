@@ -153,7 +153,7 @@ def joint_change(instrument, profile: air.BoreProfile, reference_hz: np.ndarray)
         except OutOfRangeError:
             fb = math.nan
         if math.isfinite(fb) and fb * fa <= 0:
-            return float(brentq(mean_drift, min(a, b), max(a, b), xtol=1e-7))
+            return float(brentq(mean_drift, min(a, b), max(a, b), xtol=1e-6))
         if not math.isfinite(fb) or abs(b) >= SEARCH_LIMIT_M:
             raise OutOfRangeError(
                 f"{instrument.name}: no joint change within ±{SEARCH_LIMIT_M * 1e3:g} mm centres the notes"
