@@ -119,9 +119,9 @@ class Design:
     co2_fraction : float
         [mol/mol] (default 420e-6).
     playing : bool
-        True: in tune while played (bore air warmed and filled with breath, a state the thermal
-        layer computes); False (default): in tune with the bore full of room air at room
-        temperature.
+        True: in tune while played (bore air warmed and filled with breath: the steady played
+        state of :mod:`drift.thermal`); False (default): in tune with the bore full of room air
+        at room temperature.
     a4_hz : float
         Reference pitch [Hz] (default 440, ISO 16).
     """

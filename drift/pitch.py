@@ -311,16 +311,16 @@ def note_frequencies(instrument, profile, lossless: bool = False, notes=None,
 
 
 def design_profile(instrument):
-    """The bore profile of the design condition when the instrument is tuned at rest.
+    """The bore profile of the instrument's ``[design]`` condition.
 
-    Uniform room air of ``instrument.design`` (:meth:`drift.air.BoreProfile.uniform`). A design
-    with ``playing = true`` needs the played bore state of the thermal layer; this raises
-    :class:`drift.errors.DriftError` for it.
+    At rest (``playing = false``): uniform room air of ``instrument.design`` at room temperature
+    (:meth:`drift.air.BoreProfile.uniform`). Played (``playing = true``): the steady played state
+    of the thermal model in the design room (:func:`drift.thermal.design_profile`).
     """
     from drift import air
-    from drift.errors import DriftError
 
     if instrument.design.playing:
-        raise DriftError(f"{instrument.name}: the design condition is played (playing = true); "
-                         "its bore profile comes from the thermal model")
+        from drift import thermal
+
+        return thermal.design_profile(instrument)
     return air.BoreProfile.uniform(instrument.design.room())

@@ -125,11 +125,19 @@ def test_refinement_reaches_hundredth_of_a_cent():
         assert z[1] > z[0] and z[1] > z[2]
 
 
-def test_design_profile_requires_thermal_model_when_played():
+def test_played_design_profile_comes_from_the_thermal_model():
+    # A design condition "while played" fills the bore with warm breath: every note sounds higher
+    # than with the bore at rest in the same room (c rises with temperature, Fletcher & Rossing
+    # 1998, Sec. 8.1).
+    import dataclasses
+
     ins = bore.load_instrument("cylindrical-reed")
-    played = ins.__class__(**{**ins.__dict__, "design": bore.Design(playing=True)})
-    with pytest.raises(Exception, match="thermal"):
-        pitch.design_profile(played)
+    played = dataclasses.replace(ins, design=dataclasses.replace(ins.design, playing=True))
+    profile = pitch.design_profile(played)
+    assert np.max(profile.temperature_k) > ins.design.temperature_k + 1.0
+    rest = pitch.note_frequencies(ins, pitch.design_profile(ins))
+    warm = pitch.note_frequencies(played, profile)
+    assert all(w.frequency_hz > r.frequency_hz for w, r in zip(warm, rest))
 
 
 def test_layout_solver_retunes_for_another_design_temperature():
