@@ -252,8 +252,14 @@ def warmup_command(instrument, climate_name, plan_text, step_s, reference_name, 
     else:
         reference = thermal.design_profile(inst)
         reference_label = "design condition" + (" (played)" if design.playing else " (at rest)")
-    result = thermal.warmup(inst, room, plan, step_s, breath, reference,
-                            names=(climate_label, reference_label))
+    # Profiles to evaluate: the samples, the reference, the steady state, and about 20 for the
+    # settle-time search.
+    progress = LazyProgress(len(thermal.sample_times(plan, step_s)) + 22, "computing")
+    try:
+        result = thermal.warmup(inst, room, plan, step_s, breath, reference, progress=progress,
+                                names=(climate_label, reference_label))
+    finally:
+        progress.close()
     doc = result.document()
     text = {"json": render.to_json, "csv": render.warmup_csv, "table": render.warmup_table}[fmt](doc)
     render.write_text(text, output_path)
