@@ -485,3 +485,24 @@ class BoreProfile:
         fractions = np.stack([at(s.mole_fractions[:, i]) for i in range(5)], axis=-1)
         return AirState(at(s.temperature), at(s.pressure), fractions, at(s.condensed.astype(float)) > 0.5,
                         props)
+
+
+def state_record(state: AirState, breath_fraction: float = 0.0) -> dict:
+    """One scalar :class:`AirState` as a flat dict in boundary units (the ``drift air`` JSON keys)."""
+    props = state.properties
+    x = np.asarray(state.mole_fractions, dtype=float)
+    return {
+        "temperature_c": float(state.temperature) - K.ZERO_CELSIUS,
+        "pressure_kpa": float(state.pressure) * 1e-3,
+        "relative_humidity_pct": float(state.relative_humidity) * 100.0,
+        "breath_fraction": float(breath_fraction),
+        "mole_fractions": {s: float(v) for s, v in zip(K.SPECIES, x)},
+        "sound_speed_m_s": float(props.sound_speed),
+        "density_kg_m3": float(props.density),
+        "viscosity_pa_s": float(props.viscosity),
+        "thermal_conductivity_w_m_k": float(props.conductivity),
+        "heat_capacity_j_kg_k": float(props.cp),
+        "heat_capacity_ratio": float(props.gamma),
+        "prandtl_number": float(props.prandtl),
+        "condensed": bool(state.condensed),
+    }
