@@ -190,7 +190,7 @@ def chart_command(instrument, climate_names, reference_name, a4_hz, tolerance_ce
     INSTRUMENT is a bundled instrument name or an instrument file (default: the bundled
     default instrument, see `drift instruments`).
     """
-    from drift import bore, chart, climate, render
+    from drift import advice, bore, chart, climate, render
 
     inst = bore.load_instrument(instrument or bore.DEFAULT_INSTRUMENT)
     climates = ([climate.load_climate(c) for c in climate_names] if climate_names
@@ -202,6 +202,8 @@ def chart_command(instrument, climate_names, reference_name, a4_hz, tolerance_ce
     finally:
         progress.close()
     doc = result.document()
+    doc["cautions"] = advice.chart_cautions(inst.material, climates)
+    doc["care_note"] = advice.DEFER if doc["cautions"] else None
     text = {"json": render.to_json, "csv": render.chart_csv, "table": render.chart_table}[fmt](doc)
     render.write_text(text, output)
 

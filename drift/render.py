@@ -202,6 +202,11 @@ def chart_table(doc: dict) -> str:
         if s.get("warning"):
             notes_text.append(f"{s['climate']}: warning: {s['warning']}")
     out += [textwrap.fill(line, TABLE_WIDTH, subsequent_indent="    ") for line in notes_text]
+    if doc.get("cautions"):
+        out += ["", "Care:"]
+        out += [textwrap.fill(f"{c['climate']} ({c['topic']}): {c['text']}", TABLE_WIDTH,
+                              initial_indent="  ", subsequent_indent="    ") for c in doc["cautions"]]
+        out.append(textwrap.fill(doc["care_note"], TABLE_WIDTH, initial_indent="  ", subsequent_indent="  "))
     return "\n".join(out) + "\n"
 
 

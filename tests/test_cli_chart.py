@@ -81,3 +81,12 @@ def test_bad_climate_file_names_file_and_key(drift_cli, tmp_path):
     result = drift_cli("chart", "--climate", path)
     assert result.returncode == 2
     assert str(path) in result.stderr and "humidity" in result.stderr
+
+
+def test_cold_and_hot_climates_carry_care_cautions(chart_json):
+    """The default instrument is wooden: the freezing parade warns of cracking and freezing, the
+    sunny lawn of heat and sun, and the set defers to the maker and local rules (common practice)."""
+    topics = {(c["climate"], c["topic"]) for c in chart_json["cautions"]}
+    assert {("frozen-parade", "cold"), ("frozen-parade", "freezing"), ("sunny-lawn", "heat")} <= topics
+    assert not any(c["climate"] == "tuning-room" for c in chart_json["cautions"])
+    assert "maker's instructions" in chart_json["care_note"]
