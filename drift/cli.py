@@ -117,8 +117,7 @@ def air_command(temp_c, rh_pct, pressure_kpa, altitude_m, co2_ppm, breath_fracti
     t = temp_c + ZERO_CELSIUS
     state = air.air_state(t, p, t, rh_pct / 100.0, co2_ppm * 1e-6, breath_fraction, breath)
     doc = air.state_record(state, breath_fraction)
-    text = {"json": render.to_json, "csv": render.air_csv, "table": render.air_table}[fmt](doc)
-    render.write_text(text, None)
+    render.emit(doc, fmt, render.air_table, render.air_csv)
 
 
 
@@ -129,10 +128,8 @@ def climates_command(fmt):
     """List the bundled climates with their conditions."""
     from drift import climate, render
 
-    rows = [climate.climate_record(c) for c in climate.bundled_climates()]
-    text = {"json": lambda r: render.to_json({"climates": r}), "csv": render.to_csv,
-            "table": render.climates_table}[fmt](rows)
-    render.write_text(text, None)
+    doc = {"climates": [climate.climate_record(c) for c in climate.bundled_climates()]}
+    render.emit(doc, fmt, render.climates_table, render.listing_csv)
 
 
 
@@ -204,8 +201,7 @@ def chart_command(instrument, climate_names, reference_name, a4_hz, tolerance_ce
     doc = result.document()
     doc["cautions"] = advice.chart_cautions(inst.material, climates)
     doc["care_note"] = advice.DEFER if doc["cautions"] else None
-    text = {"json": render.to_json, "csv": render.chart_csv, "table": render.chart_table}[fmt](doc)
-    render.write_text(text, output)
+    render.emit(doc, fmt, render.chart_table, render.chart_csv, output)
 
 
 @main.command("warmup")
@@ -263,8 +259,7 @@ def warmup_command(instrument, climate_name, plan_text, step_s, reference_name, 
     finally:
         progress.close()
     doc = result.document()
-    text = {"json": render.to_json, "csv": render.warmup_csv, "table": render.warmup_table}[fmt](doc)
-    render.write_text(text, output_path)
+    render.emit(doc, fmt, render.warmup_table, render.warmup_csv, output_path)
 
 
 @main.command("resonances")
@@ -303,8 +298,7 @@ def resonances_command(instrument, note_name, temp_c, rh_pct, pressure_kpa, alti
     doc = {"instrument": inst.name,
            "fingerings": [{"note": n.name, "register": n.register if named else None,
                            "resonances_hz": [float(f) for f in res]} for n, res in zip(notes, found)]}
-    text = {"json": render.to_json, "csv": render.resonances_csv, "table": render.resonances_table}[fmt](doc)
-    render.write_text(text, None)
+    render.emit(doc, fmt, render.resonances_table, render.resonances_csv)
 
 
 @main.command("instruments")
@@ -314,10 +308,9 @@ def instruments_command(fmt):
     """List the bundled instruments with a one-line description."""
     from drift import bore, render
 
-    rows = [bore.instrument_record(bore.load_instrument(name)) for name, _ in bore.bundled_instruments()]
-    text = {"json": lambda r: render.to_json({"instruments": r}), "csv": render.to_csv,
-            "table": render.instruments_table}[fmt](rows)
-    render.write_text(text, None)
+    doc = {"instruments": [bore.instrument_record(bore.load_instrument(name))
+                           for name, _ in bore.bundled_instruments()]}
+    render.emit(doc, fmt, render.instruments_table, render.listing_csv)
 
 
 if __name__ == "__main__":  # pragma: no cover

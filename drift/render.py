@@ -54,6 +54,13 @@ def table(rows, headers, colalign=None) -> str:
                     disable_numparse=True) + "\n"
 
 
+def emit(doc, fmt: str, table, csv, output: str | os.PathLike | None = None) -> None:
+    """Render ``doc`` as JSON, or with the ``table`` or ``csv`` function, and write it
+    (:func:`write_text`) to ``output`` or standard output."""
+    text = to_json(doc) if fmt == "json" else (table if fmt == "table" else csv)(doc)
+    write_text(text, output)
+
+
 def write_text(text: str, path: str | os.PathLike | None) -> None:
     """Write ``text`` to ``path`` atomically, or to standard output when ``path`` is None.
 
@@ -124,8 +131,9 @@ def _player_label(row: dict) -> str:
     return "steady" if minutes is None else f"{minutes:g} min"
 
 
-def climates_table(rows: list[dict]) -> str:
-    """The bundled climates, one line each, fitting 100 columns."""
+def climates_table(doc: dict) -> str:
+    """The bundled climates (``doc["climates"]``), one line each, fitting 100 columns."""
+    rows = doc["climates"]
     body = [[r["name"], f"{r['temperature_c']:.1f}", f"{r['relative_humidity_pct']:.0f}",
              f"{r['pressure_kpa']:.1f}", _player_label(r), textwrap.shorten(r["description"], 48)]
             for r in rows]
@@ -307,9 +315,16 @@ def resonances_csv(doc: dict) -> str:
     return to_csv(rows, ["instrument", "note", "register", "n", "frequency_hz"])
 
 
-def instruments_table(rows: list[dict]) -> str:
-    """The bundled instruments, one line each."""
+def instruments_table(doc: dict) -> str:
+    """The bundled instruments (``doc["instruments"]``), one line each."""
+    rows = doc["instruments"]
     body = [[r["name"], r["excitation"], f"{r['length_mm']:.0f}", str(r["notes"]),
              textwrap.shorten(r["description"], 56)] for r in rows]
     return table(body, headers=["instrument", "excitation", "mm", "notes", "description"],
                  colalign=("left", "left", "right", "right", "left"))
+
+
+def listing_csv(doc: dict) -> str:
+    """CSV of a listing document: the rows of its single key (``climates`` or ``instruments``)."""
+    (rows,) = doc.values()
+    return to_csv(rows)
