@@ -2,4 +2,4 @@
 
 from drift.cli import main
 
-main()
+main(prog_name="drift")

@@ -90,3 +90,35 @@ def test_cold_and_hot_climates_carry_care_cautions(chart_json):
     assert {("frozen-parade", "cold"), ("frozen-parade", "freezing"), ("sunny-lawn", "heat")} <= topics
     assert not any(c["climate"] == "tuning-room" for c in chart_json["cautions"])
     assert "maker's instructions" in chart_json["care_note"]
+
+
+def test_progress_bar_goes_to_a_terminal_stderr_only():
+    """With stderr on a terminal (a pseudo-terminal here), a run of several seconds shows a progress
+    bar there, and the JSON on stdout stays clean."""
+    import os
+    import pty
+    import subprocess
+    import sys
+
+    leader, follower = pty.openpty()
+    try:
+        result = subprocess.run([sys.executable, "-m", "drift", "chart", "--format", "json"],
+                                stdout=subprocess.PIPE, stderr=follower, text=True, timeout=600)
+        os.close(follower)
+        follower = None
+        seen = b""
+        while True:
+            try:
+                chunk = os.read(leader, 4096)
+            except OSError:
+                break
+            if not chunk:
+                break
+            seen += chunk
+    finally:
+        if follower is not None:
+            os.close(follower)
+        os.close(leader)
+    assert result.returncode == 0
+    assert b"computing" in seen
+    assert json.loads(result.stdout)["rows"]
