@@ -23,6 +23,10 @@ FORMAT_OPTION = click.option(
     help="Output format.",
 )
 
+INSTRUMENT_ARGUMENT = click.argument("instrument", required=False, default=None, metavar="[INSTRUMENT]")
+OUTPUT_OPTION = click.option("--output", "output", type=click.Path(dir_okay=False, writable=True), default=None,
+                             help="Write the result to this file instead of standard output.")
+
 
 def _range(name: str):
     """A click range type from the air model's limits (drift.air.LIMITS)."""
@@ -162,9 +166,6 @@ class LazyProgress:
             self.bar.__exit__(None, None, None)
 
 
-INSTRUMENT_ARGUMENT = click.argument("instrument", required=False, default=None, metavar="[INSTRUMENT]")
-OUTPUT_OPTION = click.option("--output", "output", type=click.Path(dir_okay=False, writable=True), default=None,
-                             help="Write the result to this file instead of standard output.")
 
 
 @main.command("chart")
@@ -205,7 +206,7 @@ def chart_command(instrument, climate_names, reference_name, a4_hz, tolerance_ce
 
 
 @main.command("warmup")
-@click.argument("instrument", required=False, default=None, metavar="[INSTRUMENT]")
+@INSTRUMENT_ARGUMENT
 @click.option("--climate", "climate_name", default=None, metavar="CLIMATE",
               help="Room and breath during the plan: bundled climate name or climate file (its "
                    "[player] playing and minutes_played give way to the plan). Default: the "
@@ -218,10 +219,9 @@ def chart_command(instrument, climate_names, reference_name, a4_hz, tolerance_ce
 @click.option("--reference", "reference_name", default=None, metavar="CLIMATE",
               help="Condition the drift is measured from. Default: the instrument's [design] condition.")
 @FORMAT_OPTION
-@click.option("--output", "output_path", type=click.Path(dir_okay=False, writable=True), default=None,
-              help="Write the result to this file instead of standard output.")
+@OUTPUT_OPTION
 @reports_errors
-def warmup_command(instrument, climate_name, plan_text, step_s, reference_name, fmt, output_path):
+def warmup_command(instrument, climate_name, plan_text, step_s, reference_name, fmt, output):
     """Pitch of every note over a play/rest plan, and the time it takes to settle.
 
     INSTRUMENT is a bundled instrument name or an instrument file. The bore warms while it is
@@ -259,11 +259,11 @@ def warmup_command(instrument, climate_name, plan_text, step_s, reference_name, 
     finally:
         progress.close()
     doc = result.document()
-    render.emit(doc, fmt, render.warmup_table, render.warmup_csv, output_path)
+    render.emit(doc, fmt, render.warmup_table, render.warmup_csv, output)
 
 
 @main.command("resonances")
-@click.argument("instrument", required=False, default=None, metavar="[INSTRUMENT]")
+@INSTRUMENT_ARGUMENT
 @click.option("--note", "note_name", default=None, metavar="NAME",
               help="Only the fingerings of this note (scientific pitch notation, e.g. F#4).")
 @air_options

@@ -206,7 +206,8 @@ def chart_table(doc: dict) -> str:
                   f"out of tune: notes beyond ±{doc['tolerance_cents']:g} cents after that change."]
     for s in doc["summary"]:
         if s["out_of_tolerance"]:
-            notes_text.append(f"{s['climate']}: still out after the change: {', '.join(s['out_of_tolerance'])}")
+            when = "after the change" if s["adjust_mm"] is not None else "(no joint to move)"
+            notes_text.append(f"{s['climate']}: still out {when}: {', '.join(s['out_of_tolerance'])}")
         if s.get("warning"):
             notes_text.append(f"{s['climate']}: warning: {s['warning']}")
     out += [textwrap.fill(line, TABLE_WIDTH, subsequent_indent="    ") for line in notes_text]
