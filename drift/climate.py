@@ -8,7 +8,7 @@ climates live in ``climates/`` at the top of the repository, shipped in the whee
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field, replace
+from dataclasses import dataclass, field
 from importlib import resources
 from pathlib import Path
 
@@ -57,9 +57,6 @@ class Climate:
     def temperature_c(self) -> float:
         return self.room.temperature_k - ZERO_CELSIUS
 
-    def resting(self) -> "Climate":
-        """The same room with the instrument not played."""
-        return replace(self, player=replace(self.player, playing=False, minutes_played=None))
 
 
 def _limits(name: str) -> dict:

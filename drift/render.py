@@ -14,9 +14,6 @@ import tempfile
 import textwrap
 from pathlib import Path
 
-FORMATS = ("table", "json", "csv")
-
-
 def _clean(value):
     """Make a value JSON-safe: numpy scalars to Python, NaN/inf to None."""
     if hasattr(value, "item") and not isinstance(value, (list, tuple, dict)):

@@ -401,13 +401,6 @@ class Wall:
         start = self.positions_m[0] - 0.5 * self.lengths_m[0]
         return start + np.concatenate([[0.0], np.cumsum(self.lengths_m)])
 
-    @property
-    def heat_capacity_j_k(self) -> np.ndarray:
-        """Heat capacity of each segment's wall [J/K]: rho c pi ((a + w)^2 - a^2) dx."""
-        a = self.inner_radius_m
-        b = a + self.thickness_m
-        return self.material.volumetric_heat_capacity * np.pi * (b**2 - a**2) * self.lengths_m
-
 
 def flow_fraction_from_exits(positions_m, exits_m) -> np.ndarray:
     """Share of the breath flow reaching each position [0-1], averaged over notes.
