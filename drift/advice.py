@@ -54,7 +54,7 @@ def cautions(material: str | None, climate) -> list[Caution]:
                         "often and keep the instrument covered between tunes.")
         if metal:
             add("freezing", "Bare lips and skin can stick to very cold metal; keep the mouthpiece "
-                            "warm (in a pocket) and do not put lips to frozen metal.")
+                            "or head joint warm (under the coat) and do not put lips to frozen metal.")
     if t > 30:
         add("heat", "Never leave the instrument in direct sun or in a closed car: pads, corks, "
                     "glue and lacquer soften, and wood dries and may split. Keep it in the shade "

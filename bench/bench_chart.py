@@ -1,0 +1,26 @@
+"""Speed of the drift chart: the default instrument across every bundled climate.
+
+Run: python bench/bench_chart.py
+"""
+
+import time
+
+from drift import bore, chart, climate
+
+
+def main():
+    start = time.perf_counter()
+    instrument = bore.load_instrument(bore.DEFAULT_INSTRUMENT)
+    climates = climate.bundled_climates()
+    chart.drift_chart(instrument, climates[:1])
+    print(f"first chart of one climate (loads CoolProp): {time.perf_counter() - start:.1f} s")
+    for name, _ in bore.bundled_instruments():
+        instrument = bore.load_instrument(name)
+        start = time.perf_counter()
+        result = chart.drift_chart(instrument, climates)
+        elapsed = time.perf_counter() - start
+        print(f"{name}: {len(result.rows)} rows over {len(climates)} climates in {elapsed:.1f} s")
+
+
+if __name__ == "__main__":
+    main()
