@@ -37,7 +37,7 @@ References
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+import dataclasses
 
 import numpy as np
 
@@ -352,39 +352,20 @@ def hole_impedances(frequency_hz, hole_radius_m, bore_radius_m, chimney_m, props
     return zs_open, zs_closed, za_open, za_closed
 
 
-@dataclass(frozen=True)
-class SegmentAir:
-    """Air properties per segment, arrays (n,): sound_speed [m/s], density [kg/m^3],
-    viscosity [Pa s], conductivity [W/(m K)], cp [J/(kg K)], gamma [-]."""
-
-    sound_speed: np.ndarray
-    density: np.ndarray
-    viscosity: np.ndarray
-    conductivity: np.ndarray
-    cp: np.ndarray
-    gamma: np.ndarray
-
-    @classmethod
-    def from_properties(cls, props, n: int | None = None) -> "SegmentAir":
-        """From :class:`drift.air.GasProperties` (any shape broadcastable to (n,))."""
-        vals = [np.asarray(getattr(props, k), dtype=float)
-                for k in ("sound_speed", "density", "viscosity", "conductivity", "cp", "gamma")]
-        if n is not None:
-            vals = [np.broadcast_to(v, (n,)).copy() for v in vals]
-        return cls(*vals)
-
-    def take(self, index) -> "SegmentAir":
-        return SegmentAir(*(np.asarray(v)[index] for v in self.__dict__.values()))
+def take_segments(props, index):
+    """The per-segment properties (a :class:`drift.air.GasProperties` of arrays) at ``index``."""
+    return type(props)(*(np.asarray(getattr(props, f.name))[index] for f in dataclasses.fields(props)))
 
 
 class Network:
     """A bore with its air, ready to give its input impedance at any frequencies.
 
-    Build once per geometry and air (:class:`drift.bore.Segments` and :class:`SegmentAir`, one
-    entry per segment); then :meth:`impedance` evaluates many frequencies and fingerings.
+    Build once per geometry and air (:class:`drift.bore.Segments` and a
+    :class:`drift.air.GasProperties` of arrays with one entry per segment); then :meth:`impedance`
+    evaluates many frequencies and fingerings.
     """
 
-    def __init__(self, segments, segment_air: SegmentAir, lossless: bool = False,
+    def __init__(self, segments, segment_air, lossless: bool = False,
                  radiation: str = "norris-sheng-1989"):
         self.seg = segments
         self.air = segment_air
@@ -393,7 +374,7 @@ class Network:
         r_mean = 0.5 * (segments.radius_in_m + segments.radius_out_m)
         self.r_mean = r_mean
         self.is_cone = np.abs(segments.radius_out_m - segments.radius_in_m) > 1e-9 * r_mean
-        self.hole_air = segment_air.take(segments.hole_segment) if len(segments.hole_segment) else None
+        self.hole_air = take_segments(segment_air, segments.hole_segment) if len(segments.hole_segment) else None
         self.n_holes = len(segments.hole_segment)
         # holes sitting at the start of each segment
         self.holes_at = [[] for _ in range(segments.n)]
@@ -494,13 +475,12 @@ class Network:
         a_bore = seg.radius_in_m[i0]
         be = seg.embouchure_radius_m
         te = seg.embouchure_chimney_m
-        air0 = SegmentAir(*(np.atleast_1d(np.asarray(v)[i0]) for v in air.__dict__.values()))
         ti, _, _ = hole_corrections(be, a_bore, max(te, 1e-6))
-        rho, c0 = float(air0.density[0]), float(air0.sound_speed[0])
+        rho, c0 = float(air.density[i0]), float(air.sound_speed[i0])
         omega = 2.0 * np.pi * f
         se = np.pi * be**2
-        g, zc = propagation_zk(f, be, air0.sound_speed[0], air0.density[0], air0.viscosity[0],
-                               air0.conductivity[0], air0.cp[0], air0.gamma[0], lossless=self.lossless)
+        g, zc = propagation_zk(f, be, air.sound_speed[i0], air.density[i0], air.viscosity[i0],
+                               air.conductivity[i0], air.cp[i0], air.gamma[i0], lossless=self.lossless)
         ca, cb, cc, cd = cylinder_matrix(g, zc, te)
         load = z_par + 1j * omega * rho * ti / se
         z_hole = (ca * load + cb) / (cc * load + cd)

@@ -243,8 +243,7 @@ def bore_network(instrument, profile, lossless: bool = False, max_segment_m: flo
                              bore.expansion_factors(t_hole, ax, t_ref), bore.expansion_factors(t_hole, rad, t_ref))
         mid = segs.midpoints_m
     state = profile.air_at(np.clip(mid, 0.0, None))
-    seg_air = acoustics.SegmentAir.from_properties(state.properties, segs.n)
-    return acoustics.Network(segs, seg_air, lossless=lossless, radiation=radiation)
+    return acoustics.Network(segs, state.properties, lossless=lossless, radiation=radiation)
 
 
 def resonances(instrument, profile, count: int = 5, notes=None, lossless: bool = False,
