@@ -124,21 +124,29 @@ def _free_joint(instrument):
         instrument.tuning, min_change_m=-SEARCH_LIMIT_M, max_change_m=SEARCH_LIMIT_M))
 
 
-def joint_change(instrument, profile: air.BoreProfile, reference_hz: np.ndarray) -> float:
+def joint_change(instrument, profile: air.BoreProfile, reference_hz: np.ndarray,
+                 drift_cents: np.ndarray | None = None) -> float:
     """The joint change [m] that brings the mean drift of all notes against ``reference_hz`` to zero.
 
     Solved with Brent's method (scipy.optimize.brentq) on the mean drift of the instrument with
     the changed bore (:meth:`drift.bore.Instrument.with_joint_change`), recomputed at every step,
     within +-:data:`SEARCH_LIMIT_M`. The bore's temperature profile is held as computed for the
     unchanged instrument: a few millimetres of tube more or less move the profile negligibly.
+    ``drift_cents``, the notes' drift with the joint unchanged, saves recomputing it when known.
     Raises :class:`OutOfRangeError` when no change within the search range centres the notes.
     """
     from scipy.optimize import brentq
 
     free = _free_joint(instrument)
 
+    known = {} if drift_cents is None else {0.0: float(np.nanmean(drift_cents))}
+
     def mean_drift(delta_m):
-        return float(np.nanmean(_cents(frequencies(free.with_joint_change(delta_m), profile), reference_hz)))
+        # Brent's method asks again for the bracket ends found below: serve them from ``known``.
+        if delta_m not in known:
+            f = frequencies(free.with_joint_change(delta_m), profile)
+            known[delta_m] = float(np.nanmean(_cents(f, reference_hz)))
+        return known[delta_m]
 
     start = mean_drift(0.0)
     if start == 0.0:
@@ -169,7 +177,7 @@ def _summary(instrument, climate: Climate, profile, drift, reference_hz, names, 
         warning = "the instrument has no tuning joint; the drift stands as shown"
     else:
         try:
-            adjust_m = joint_change(instrument, profile, reference_hz)
+            adjust_m = joint_change(instrument, profile, reference_hz, drift)
         except OutOfRangeError as error:
             warning = str(error)
         if adjust_m is not None:
