@@ -5,21 +5,21 @@ Run: python bench/bench_chart.py
 
 import time
 
-from drift import bore, chart, climate
+from drift import chart, climate
+from drift.instrument import DEFAULT_INSTRUMENT, bundled_instruments, load_instrument
 
 
 def main():
     start = time.perf_counter()
-    instrument = bore.load_instrument(bore.DEFAULT_INSTRUMENT)
+    instrument = load_instrument(DEFAULT_INSTRUMENT)
     climates = climate.bundled_climates()
     chart.drift_chart(instrument, climates[:1])
     print(f"first chart of one climate (loads CoolProp): {time.perf_counter() - start:.1f} s")
-    for name, _ in bore.bundled_instruments():
-        instrument = bore.load_instrument(name)
+    for instrument in bundled_instruments():
         start = time.perf_counter()
         result = chart.drift_chart(instrument, climates)
         elapsed = time.perf_counter() - start
-        print(f"{name}: {len(result.rows)} rows over {len(climates)} climates in {elapsed:.1f} s")
+        print(f"{instrument.name}: {len(result.rows)} rows over {len(climates)} climates in {elapsed:.1f} s")
 
 
 if __name__ == "__main__":

@@ -7,7 +7,10 @@ import time
 
 import numpy as np
 
-from drift import air, bore, pitch
+from drift import pitch
+from drift.climate import Room
+from drift.instrument import bundled_instruments, load_instrument
+from drift.thermal import BoreProfile
 
 
 def best_of(function, repeat=7):
@@ -20,25 +23,24 @@ def best_of(function, repeat=7):
 
 
 def main():
-    room = air.Room(295.15, relative_humidity=0.45)
-    uniform = air.BoreProfile.uniform(room)
-    pitch.note_frequencies(bore.load_instrument("cylindrical-reed"), uniform)  # loads CoolProp
-    for name, _ in bore.bundled_instruments():
-        ins = bore.load_instrument(name)
+    room = Room(295.15, relative_humidity=0.45)
+    uniform = BoreProfile.uniform(room)
+    pitch.note_frequencies(load_instrument("cylindrical-reed"), uniform)  # loads CoolProp
+    for ins in bundled_instruments():
         net = pitch.bore_network(ins, uniform)
         notes = ins.fingerings()
         one = best_of(lambda: pitch.note_frequencies(ins, uniform, notes=notes[:1], network=net))
         every = best_of(lambda: pitch.note_frequencies(ins, uniform, network=net))
         whole = best_of(lambda: pitch.note_frequencies(ins, uniform))
-        print(f"{name} ({net.seg.n} segments, {len(ins.holes)} holes, {len(notes)} notes):")
+        print(f"{ins.name} ({net.seg.n} segments, {len(ins.holes)} holes, {len(notes)} notes):")
         print(f"  one fingering's search          {one * 1e3:6.1f} ms")
         print(f"  all {len(notes):2d} fingerings at once      {every * 1e3:6.1f} ms")
         print(f"  with discretisation and air     {whole * 1e3:6.1f} ms (uniform air, cached state)")
     # A bore profile with a temperature gradient: every segment a new CoolProp state
-    ins = bore.load_instrument("cylindrical-reed")
+    ins = load_instrument("cylindrical-reed")
     x = np.linspace(0.0, ins.length_m, 8)
     t = np.linspace(305.0, 296.0, 8) + np.random.default_rng(1).uniform(0, 1e-3)
-    profile = air.BoreProfile(room, x, t, np.linspace(0.9, 0.3, 8), t)
+    profile = BoreProfile(room, x, t, np.linspace(0.9, 0.3, 8), t)
     start = time.perf_counter()
     pitch.note_frequencies(ins, profile)
     cold = time.perf_counter() - start

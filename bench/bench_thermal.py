@@ -7,7 +7,10 @@ import time
 
 import numpy as np
 
-from drift import air, bore, thermal
+from drift import thermal, warmup
+from drift.climate import Room, default_blowing, parse_plan
+from drift.instrument import load_instrument
+from drift.segments import instrument_wall
 
 
 def timed(label, function, repeat=5):
@@ -19,20 +22,20 @@ def timed(label, function, repeat=5):
 
 
 def main():
-    room = air.Room(293.15, 101325.0, 0.5)
-    plan = thermal.parse_plan("play:10,rest:5,play:10")
+    room = Room(293.15, 101325.0, 0.5)
+    plan = parse_plan("play:10,rest:5,play:10")
     times = np.arange(0.0, 25.01, 0.5) * 60.0
     for name in ("cylindrical-reed", "conical-reed", "side-blown-flute"):
-        instrument = bore.load_instrument(name)
-        wall = thermal.instrument_wall(instrument)
-        blowing = thermal.instrument_blowing(instrument)
+        instrument = load_instrument(name)
+        wall = instrument_wall(instrument)
+        blowing = default_blowing(instrument.excitation)
         layers = thermal._auto_layers(wall)
         print(f"{name}: {wall.positions_m.size} segments x {layers} layers")
         timed("  steady state", lambda: thermal.steady_state(wall, room, blowing))
         timed("  25 min timeline, 51 states", lambda: thermal.timeline(wall, room, plan, times, blowing))
-    instrument = bore.load_instrument("cylindrical-reed")
+    instrument = load_instrument("cylindrical-reed")
     start = time.perf_counter()
-    thermal.warmup(instrument, room, thermal.parse_plan("play:20"), 30.0)
+    warmup.warmup_timeline(instrument, room, "play:20", 30.0)
     print(f"cylindrical-reed warm-up in pitch, play:20 every 30 s: {time.perf_counter() - start:.1f} s")
 
 

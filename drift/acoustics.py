@@ -1,6 +1,6 @@
 """Input impedance of a bore by the transfer-matrix method, with visco-thermal losses.
 
-The bore (:class:`drift.bore.Segments`) is a chain of conical and cylindrical segments; each
+The bore (:class:`drift.segments.Segments`) is a chain of conical and cylindrical segments; each
 segment carries its own air (speed of sound c, density rho, viscosity eta, conductivity kappa,
 heat capacity cp and ratio gamma). Every segment is a 2x2 matrix relating acoustic pressure p
 and volume flow U at its two ends,
@@ -155,32 +155,6 @@ def propagation_zk(frequency_hz, radius_m, sound_speed, density, viscosity, cond
     ft = bessel_ratio(np.broadcast_to(minus_j * rt, shape))
     z = 1j * omega * rho / s / (1.0 - fv)
     y = 1j * omega * s / (rho * c**2) * (1.0 + (np.asarray(gamma, dtype=float) - 1.0) * ft)
-    return np.sqrt(z * y), np.sqrt(z / y)
-
-
-def propagation_keefe1984(frequency_hz, radius_m, sound_speed, density, viscosity, conductivity, cp, gamma):
-    """Gamma [1/m] and Zc [Pa s/m^3] from the large-r_v approximations of Keefe (1984) [2].
-
-    With r_v = a sqrt(omega rho / eta) and r_t = a sqrt(omega rho cp / kappa) (both >> 1):
-
-        Z = (omega rho / S) [sqrt2/r_v + 3/r_v^2 + j (1 + sqrt2/r_v)]
-        Y = (omega S / (rho c^2)) [(gamma-1)(sqrt2/r_t - 1/r_t^2) + j (1 + (gamma-1) sqrt2/r_t)]
-
-    (Keefe 1984, Eqs. 8-9, equation numbers from memory; here re-derived as the two leading terms of the large-argument
-    expansion of the Zwikker-Kosten functions). Kept as an independent check of
-    :func:`propagation_zk`; valid to about 1 % for r_v > 10.
-    """
-    omega = 2.0 * np.pi * np.asarray(frequency_hz, dtype=float)
-    a = np.asarray(radius_m, dtype=float)
-    rho = np.asarray(density, dtype=float)
-    c = np.asarray(sound_speed, dtype=float)
-    g = np.asarray(gamma, dtype=float)
-    s = np.pi * a**2
-    rv = a * np.sqrt(omega * rho / np.asarray(viscosity, dtype=float))
-    rt = a * np.sqrt(omega * rho * np.asarray(cp, dtype=float) / np.asarray(conductivity, dtype=float))
-    r2 = np.sqrt(2.0)
-    z = omega * rho / s * (r2 / rv + 3.0 / rv**2 + 1j * (1.0 + r2 / rv))
-    y = omega * s / (rho * c**2) * ((g - 1.0) * (r2 / rt - 1.0 / rt**2) + 1j * (1.0 + (g - 1.0) * r2 / rt))
     return np.sqrt(z * y), np.sqrt(z / y)
 
 
@@ -360,7 +334,7 @@ def take_segments(props, index):
 class Network:
     """A bore with its air, ready to give its input impedance at any frequencies.
 
-    Build once per geometry and air (:class:`drift.bore.Segments` and a
+    Build once per geometry and air (:class:`drift.segments.Segments` and a
     :class:`drift.air.GasProperties` of arrays with one entry per segment); then :meth:`impedance`
     evaluates many frequencies and fingerings.
     """
@@ -396,10 +370,6 @@ class Network:
             a, b, c, d = a.copy(), b.copy(), c.copy(), d.copy()
             a[i], b[i], c[i], d[i] = ca, cb, cc, cd
         return a, b, c, d
-
-    def transfer_matrices(self, frequency_hz):
-        """(A, B, C, D) of every segment at frequencies [Hz], arrays (n, N) (for checks)."""
-        return self._matrices(np.atleast_1d(np.asarray(frequency_hz, dtype=float)))
 
     def impedance(self, frequency_hz, open_holes=None, paired: bool = False):
         """Input impedance [Pa s/m^3] at the input end (reed, lips) or as seen by the jet.

@@ -66,9 +66,3 @@ def cautions(material: str | None, climate) -> list[Caution]:
         add("dry", "Dry air draws moisture from wood and can crack it; keep the instrument in its "
                    "case with the humidity control the maker recommends.")
     return out
-
-
-def chart_cautions(material: str | None, climates) -> list[dict]:
-    """The cautions of every climate as rows for output (keys climate, topic, text)."""
-    return [{"climate": c.climate, "topic": c.topic, "text": c.text}
-            for climate in climates for c in cautions(material, climate)]

@@ -18,67 +18,22 @@ Wagner, W., Riethmann, T., Feistel, R., Harvey, A. H. (2011). New equations for 
 pressure and melting pressure of H2O ice Ih. J. Phys. Chem. Ref. Data 40, 043103.
 Davis, R. S. (1992). Equation for the determination of the density of moist air (1981/91).
 Metrologia 29, 67-70.
-ISO 2533:1975. Standard Atmosphere.
 """
 
 from __future__ import annotations
 
 import functools
-from dataclasses import dataclass, field, fields
+from dataclasses import dataclass, field
 
 import numpy as np
 
 from drift import constants as K
-from drift.errors import OutOfRangeError
-
-#: Validity range of the air model, in boundary units: (low, high, unit label).
-LIMITS = {
-    "temperature_c": (-30.0, 60.0, "°C"),
-    "pressure_kpa": (50.0, 110.0, "kPa"),
-    "relative_humidity_pct": (0.0, 100.0, "%"),
-    "co2_ppm": (0.0, 100_000.0, "ppm"),
-    "breath_fraction": (0.0, 1.0, ""),
-    "altitude_m": (-400.0, 5000.0, "m"),
-    "breath_co2_pct": (0.0, 10.0, "%"),
-    "breath_o2_pct": (5.0, 21.0, "%"),
-}
-
-
-def check_range(name: str, value, scale: float = 1.0, offset: float = 0.0) -> None:
-    """Raise :class:`OutOfRangeError` if ``value*scale + offset`` leaves ``LIMITS[name]``.
-
-    ``scale`` and ``offset`` turn an SI value into the boundary unit of ``name`` (for example
-    ``offset=-273.15`` for a temperature in K checked against °C). NaN is out of range.
-    """
-    low, high, unit = LIMITS[name]
-    shown = np.asarray(value, dtype=float) * scale + offset
-    bad = ~((shown >= low - 1e-9) & (shown <= high + 1e-9))
-    if np.any(bad):
-        worst = np.atleast_1d(shown)[np.atleast_1d(bad)][0]
-        label = name.replace("_", " ")
-        raise OutOfRangeError(
-            f"{label} {worst:g} {unit} is outside the allowed range {low:g} to {high:g} {unit}".strip()
-        )
-
+from drift.climate import DEFAULT_BREATH, Breath, Room
+from drift.errors import check_range
 
 # --------------------------------------------------------------------------------------------
-# Atmosphere and water vapour
+# Water vapour
 # --------------------------------------------------------------------------------------------
-
-
-def pressure_from_altitude(altitude_m):
-    """Static pressure [Pa] of the ISO 2533 standard atmosphere at a geometric altitude [m].
-
-    Troposphere layer: geopotential altitude H = r z / (r + z), then
-    p = p0 (1 - L H / T0) ** (g0 / (R L)), with p0 = 101325 Pa, T0 = 288.15 K,
-    L = 0.0065 K/m, g0 = 9.80665 m/s^2, R = 287.05287 J/(kg K) (ISO 2533:1975, Eqs. 8, 12).
-    Valid here from -400 m to 5000 m.
-    """
-    z = np.asarray(altitude_m, dtype=float)
-    check_range("altitude_m", z)
-    h = K.EARTH_RADIUS * z / (K.EARTH_RADIUS + z)
-    exponent = K.STANDARD_GRAVITY / (K.AIR_GAS_CONSTANT * K.LAPSE_RATE)
-    return K.STANDARD_PRESSURE * (1.0 - K.LAPSE_RATE * h / K.STANDARD_TEMPERATURE) ** exponent
 
 
 @functools.cache
@@ -186,37 +141,6 @@ def room_air(temperature_k, pressure_pa, relative_humidity, co2_fraction=K.DEFAU
     """
     x_w = water_fraction(temperature_k, pressure_pa, relative_humidity)
     return _with_dry_part(K.DRY_AIR_N2_O2_AR, co2_fraction, x_w)
-
-
-@dataclass(frozen=True)
-class Breath:
-    """Exhaled breath as it leaves the player.
-
-    Defaults (from memory, textbook respiratory physiology, e.g. West, *Respiratory Physiology*):
-    mixed expired gas near 16 % O2 and 4-5 % CO2 on a dry basis; exhaled air leaves the mouth
-    near 34-35 °C, saturated with water vapour.
-
-    Attributes
-    ----------
-    temperature_k : float
-        Breath temperature [K] (default 308.15 K = 35 °C).
-    co2_fraction : float
-        CO2 in the dry part of the breath [mol/mol] (default 0.045).
-    o2_fraction : float
-        O2 in the dry part of the breath [mol/mol] (default 0.16).
-    """
-
-    temperature_k: float = 308.15
-    co2_fraction: float = 0.045
-    o2_fraction: float = 0.16
-
-    def __post_init__(self):
-        check_range("temperature_c", self.temperature_k, offset=-K.ZERO_CELSIUS)
-        check_range("breath_co2_pct", self.co2_fraction, scale=100.0)
-        check_range("breath_o2_pct", self.o2_fraction, scale=100.0)
-
-
-DEFAULT_BREATH = Breath()
 
 
 def breath_air(pressure_pa, breath: Breath = DEFAULT_BREATH):
@@ -388,121 +312,41 @@ def air_state(
     return AirState(t, p, x, condensed, gas_properties(t, p, x))
 
 
-# --------------------------------------------------------------------------------------------
-# The room, and the gas along a bore
-# --------------------------------------------------------------------------------------------
+def air_properties(room: Room, breath_fraction=0.0, breath: Breath = DEFAULT_BREATH,
+                   temperature_k=None) -> AirState:
+    """Real-gas properties of the room air with a share of exhaled breath mixed in.
 
-
-@dataclass(frozen=True)
-class Room:
-    """The air around the instrument.
-
-    Attributes: temperature_k [K], pressure_pa [Pa], relative_humidity [0-1],
-    co2_fraction [mol/mol, of the dry air].
-    """
-
-    temperature_k: float
-    pressure_pa: float = K.STANDARD_PRESSURE
-    relative_humidity: float = 0.0
-    co2_fraction: float = K.DEFAULT_CO2_FRACTION
-
-    def __post_init__(self):
-        check_range("temperature_c", self.temperature_k, offset=-K.ZERO_CELSIUS)
-        check_range("pressure_kpa", self.pressure_pa, scale=1e-3)
-        check_range("relative_humidity_pct", self.relative_humidity, scale=100.0)
-        check_range("co2_ppm", self.co2_fraction, scale=1e6)
-
-
-@dataclass(frozen=True)
-class BoreProfile:
-    """Air temperature, breath fraction and wall temperature sampled along a bore.
-
-    This is what the thermal layer hands to the acoustics layer. Values between samples are
-    interpolated linearly, and held constant beyond the first and last sample.
-
-    Attributes
+    Parameters
     ----------
-    room : Room
-    positions_m : ndarray (n,) [m] from the input end, ascending
-    temperature_k : ndarray (n,) air temperature [K]
-    breath_fraction : ndarray (n,) [0-1], mole fraction of breath in the bore air
-    wall_temperature_k : ndarray (n,) [K]
-    breath : Breath
+    room : drift.climate.Room
+        Temperature [K], pressure [Pa], relative humidity [0-1] and CO2 [mol/mol] of the room.
+    breath_fraction : float or array_like
+        Mole fraction of exhaled breath in the mixture [0-1].
+    breath : drift.climate.Breath
+        The exhaled breath (temperature, CO2 and O2 of its dry part).
+    temperature_k : float or array_like, optional
+        Temperature the mixture is taken to [K] (default: the room's); water beyond saturation
+        there condenses (:func:`mix`).
+
+    Returns
+    -------
+    AirState
+        Conditions, mole fractions (N2, O2, Ar, CO2, H2O) and :class:`GasProperties` (speed of
+        sound [m/s], density [kg/m^3], viscosity [Pa s], conductivity [W/(m K)], cp [J/(kg K)],
+        gamma, Prandtl).
+
+    Notes
+    -----
+    Composition from :func:`room_air`, :func:`breath_air` and :func:`mix`; properties from
+    :func:`gas_properties` (CoolProp's HEOS mixture model, Bell et al. 2014).
+
+    Examples
+    --------
+    >>> from drift import Room, air_properties
+    >>> state = air_properties(Room(293.15, 101325.0, 0.5))
+    >>> round(float(state.properties.sound_speed), 1)
+    344.0
     """
-
-    room: Room
-    positions_m: np.ndarray
-    temperature_k: np.ndarray
-    breath_fraction: np.ndarray
-    wall_temperature_k: np.ndarray
-    breath: Breath = DEFAULT_BREATH
-
-    @classmethod
-    def uniform(cls, room: Room, breath_fraction: float = 0.0, breath: Breath = DEFAULT_BREATH):
-        """Air and wall at room temperature everywhere, with a uniform breath fraction."""
-        t = np.array([room.temperature_k])
-        return cls(room, np.array([0.0]), t, np.array([float(breath_fraction)]), t, breath)
-
-    def _interp(self, values, positions_m):
-        return np.interp(np.asarray(positions_m, dtype=float), self.positions_m, values)
-
-    def wall_temperature_at(self, positions_m):
-        """Wall temperature [K] at positions [m]."""
-        return self._interp(self.wall_temperature_k, positions_m)
-
-    @functools.cached_property
-    def sampled_air(self) -> AirState:
-        """The gas at the profile's own sample positions, through :func:`air_state` (computed once)."""
-        return air_state(
-            self.temperature_k,
-            self.room.pressure_pa,
-            self.room.temperature_k,
-            self.room.relative_humidity,
-            self.room.co2_fraction,
-            np.clip(self.breath_fraction, 0.0, 1.0),
-            self.breath,
-        )
-
-    def air_at(self, positions_m) -> AirState:
-        """The gas (:class:`AirState`) at positions [m] along the bore.
-
-        The real-gas state is computed once at the profile's samples (:attr:`sampled_air`) and its
-        temperature, composition and properties are interpolated linearly to ``positions_m``. The
-        properties are smooth in temperature and composition, so between samples a few
-        centimetres and a kelvin or two apart this differs from a fresh evaluation by far less
-        than the model's own uncertainty (tests/test_air.py bounds it), and moving positions (a
-        joint change, an expanded bore) costs no new CoolProp states.
-        """
-        x = np.asarray(positions_m, dtype=float)
-        s = self.sampled_air
-        if self.positions_m.size == 1:
-            def at(values):
-                return np.broadcast_to(np.asarray(values)[0], x.shape).copy()
-        else:
-            def at(values):
-                return np.interp(x, self.positions_m, values)
-        props = GasProperties(*(at(getattr(s.properties, f.name)) for f in fields(GasProperties)))
-        fractions = np.stack([at(s.mole_fractions[:, i]) for i in range(5)], axis=-1)
-        return AirState(at(s.temperature), at(s.pressure), fractions, at(s.condensed.astype(float)) > 0.5,
-                        props)
-
-
-def state_record(state: AirState, breath_fraction: float = 0.0) -> dict:
-    """One scalar :class:`AirState` as a flat dict in boundary units (the ``drift air`` JSON keys)."""
-    props = state.properties
-    x = np.asarray(state.mole_fractions, dtype=float)
-    return {
-        "temperature_c": float(state.temperature) - K.ZERO_CELSIUS,
-        "pressure_kpa": float(state.pressure) * 1e-3,
-        "relative_humidity_pct": float(state.relative_humidity) * 100.0,
-        "breath_fraction": float(breath_fraction),
-        "mole_fractions": {s: float(v) for s, v in zip(K.SPECIES, x)},
-        "sound_speed_m_s": float(props.sound_speed),
-        "density_kg_m3": float(props.density),
-        "viscosity_pa_s": float(props.viscosity),
-        "thermal_conductivity_w_m_k": float(props.conductivity),
-        "heat_capacity_j_kg_k": float(props.cp),
-        "heat_capacity_ratio": float(props.gamma),
-        "prandtl_number": float(props.prandtl),
-        "condensed": bool(state.condensed),
-    }
+    t = room.temperature_k if temperature_k is None else temperature_k
+    return air_state(t, room.pressure_pa, room.temperature_k, room.relative_humidity, room.co2_fraction,
+                     breath_fraction, breath)

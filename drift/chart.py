@@ -15,15 +15,12 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from drift import air
+from drift import pitch, thermal
 from drift.climate import Climate, Player
+from drift.constants import A4_HZ, TOLERANCE_CENTS
 from drift.errors import DriftError, OutOfRangeError
-
-#: Default "in tune" threshold [cent] (common practice: about 5 cents is where ensemble players
-#: start to hear beating against a held reference).
-DEFAULT_TOLERANCE_CENTS = 5.0
-#: Reference pitch A4 [Hz], ISO 16:1975.
-DEFAULT_A4_HZ = 440.0
+from drift.instrument import Instrument
+from drift.scale import cents, equal_temperament_hz
 #: Largest joint change the solver searches [m], either way; beyond the joint's own limits the
 #: result is reported with a warning.
 SEARCH_LIMIT_M = 0.06
@@ -46,9 +43,10 @@ class DriftRow:
 class ClimateSummary:
     """The drift of all notes in one climate and the joint setting that centres it.
 
-    ``adjust_mm`` > 0 pulls the joint out (adds length), < 0 pushes it in; None when the
-    instrument has no tuning joint. ``residual_spread_cents`` and ``out_of_tolerance`` are after
-    that change. ``warning`` says when the change exceeds what the joint allows.
+    Drifts in cents; ``adjust_m`` [m] > 0 pulls the joint out (adds length), < 0 pushes it in;
+    None when the instrument has no tuning joint. ``residual_spread_cents`` and
+    ``out_of_tolerance`` are after that change. ``warning`` says when the change exceeds what the
+    joint allows.
     """
 
     climate: str
@@ -56,7 +54,7 @@ class ClimateSummary:
     min_drift_cents: float
     max_drift_cents: float
     spread_cents: float
-    adjust_mm: float | None
+    adjust_m: float | None
     residual_spread_cents: float
     out_of_tolerance: list[str]
     adjusted_drift_cents: list[float]
@@ -65,6 +63,10 @@ class ClimateSummary:
 
 @dataclass(frozen=True)
 class Chart:
+    """The drift chart of one instrument: a :class:`DriftRow` per note and climate, a
+    :class:`ClimateSummary` per climate, and the chart's settings (A4 [Hz], reference climate,
+    tolerance [cent])."""
+
     instrument: str
     a4_hz: float
     reference: str
@@ -74,62 +76,31 @@ class Chart:
     rows: list[DriftRow]
     summary: list[ClimateSummary]
 
-    def document(self) -> dict:
-        """The chart as the JSON document of ``drift chart --format json``."""
-        summary = []
-        for s in self.summary:
-            item = dataclasses.asdict(s)
-            item.pop("adjusted_drift_cents")
-            summary.append(item)
-        return {
-            "instrument": self.instrument,
-            "a4_hz": self.a4_hz,
-            "reference": self.reference,
-            "tolerance_cents": self.tolerance_cents,
-            "climates": self.climates,
-            "rows": [dataclasses.asdict(r) for r in self.rows],
-            "summary": summary,
-        }
 
-
-def design_climate(instrument) -> Climate:
+def design_climate(instrument: Instrument) -> Climate:
     """The instrument's ``[design]`` condition as a climate named "design"."""
     d = instrument.design
     return Climate("design", d.room(), Player(playing=d.playing),
                    description=f"design condition of {instrument.name}")
 
 
-def bore_profile(instrument, climate: Climate) -> air.BoreProfile:
-    """The air and wall along the bore in a climate: at rest, uniform room air; played, the
-    thermal layer's state, steady or after ``minutes_played`` (:func:`drift.thermal.climate_profile`)."""
-    from drift import thermal
-
-    return thermal.climate_profile(instrument, climate)
-
-
-def frequencies(instrument, profile: air.BoreProfile) -> np.ndarray:
+def frequencies(instrument: Instrument, profile: thermal.BoreProfile) -> np.ndarray:
     """Playing frequency [Hz] of every note of the instrument with the bore air of ``profile``."""
-    from drift import pitch
-
     return np.array([n.frequency_hz for n in pitch.note_frequencies(instrument, profile)])
 
 
-def _cents(f, f_ref):
-    return 1200.0 * np.log2(np.asarray(f) / np.asarray(f_ref))
-
-
-def _free_joint(instrument):
+def _free_joint(instrument: Instrument) -> Instrument:
     """The instrument with its joint free to move over the whole search range."""
     return dataclasses.replace(instrument, tuning=dataclasses.replace(
         instrument.tuning, min_change_m=-SEARCH_LIMIT_M, max_change_m=SEARCH_LIMIT_M))
 
 
-def joint_change(instrument, profile: air.BoreProfile, reference_hz: np.ndarray,
+def joint_change(instrument: Instrument, profile: thermal.BoreProfile, reference_hz: np.ndarray,
                  drift_cents: np.ndarray | None = None) -> float:
     """The joint change [m] that brings the mean drift of all notes against ``reference_hz`` to zero.
 
     Solved with Brent's method (scipy.optimize.brentq) on the mean drift of the instrument with
-    the changed bore (:meth:`drift.bore.Instrument.with_joint_change`), recomputed at every step,
+    the changed bore (:meth:`drift.instrument.Instrument.with_joint_change`), recomputed at every step,
     within +-:data:`SEARCH_LIMIT_M`. The bore's temperature profile is held as computed for the
     unchanged instrument: a few millimetres of tube more or less move the profile negligibly.
     ``drift_cents``, the notes' drift with the joint unchanged, saves recomputing it when known.
@@ -145,7 +116,7 @@ def joint_change(instrument, profile: air.BoreProfile, reference_hz: np.ndarray,
         # Brent's method asks again for the bracket ends found below: serve them from ``known``.
         if delta_m not in known:
             f = frequencies(free.with_joint_change(delta_m), profile)
-            known[delta_m] = float(np.nanmean(_cents(f, reference_hz)))
+            known[delta_m] = float(np.nanmean(cents(f, reference_hz)))
         return known[delta_m]
 
     start = mean_drift(0.0)
@@ -169,7 +140,7 @@ def joint_change(instrument, profile: air.BoreProfile, reference_hz: np.ndarray,
         a, fa, step = b, fb, step * 2
 
 
-def _summary(instrument, climate: Climate, profile, drift, reference_hz, names, tolerance) -> ClimateSummary:
+def _summary(instrument: Instrument, climate: Climate, profile, drift, reference_hz, names, tolerance) -> ClimateSummary:
     warning = None
     adjust_m = None
     adjusted = drift
@@ -181,7 +152,7 @@ def _summary(instrument, climate: Climate, profile, drift, reference_hz, names, 
         except OutOfRangeError as error:
             warning = str(error)
         if adjust_m is not None:
-            adjusted = _cents(frequencies(_free_joint(instrument).with_joint_change(adjust_m), profile),
+            adjusted = cents(frequencies(_free_joint(instrument).with_joint_change(adjust_m), profile),
                               reference_hz)
             t = instrument.tuning
             if not t.min_change_m <= adjust_m <= t.max_change_m:
@@ -193,7 +164,7 @@ def _summary(instrument, climate: Climate, profile, drift, reference_hz, names, 
         min_drift_cents=float(np.nanmin(drift)),
         max_drift_cents=float(np.nanmax(drift)),
         spread_cents=float(np.nanmax(drift) - np.nanmin(drift)),
-        adjust_mm=None if adjust_m is None else adjust_m * 1e3,
+        adjust_m=adjust_m,
         residual_spread_cents=float(np.nanmax(adjusted) - np.nanmin(adjusted)),
         out_of_tolerance=[n for n, d in zip(names, adjusted) if not abs(d) <= tolerance],
         adjusted_drift_cents=[float(d) for d in adjusted],
@@ -201,14 +172,13 @@ def _summary(instrument, climate: Climate, profile, drift, reference_hz, names, 
     )
 
 
-def drift_chart(instrument, climates: list[Climate], reference: Climate | None = None,
-                a4_hz: float = DEFAULT_A4_HZ, tolerance_cents: float = DEFAULT_TOLERANCE_CENTS,
-                progress=None) -> Chart:
+def drift_chart(instrument: Instrument, climates: list[Climate], reference: Climate | None = None,
+                a4_hz: float = A4_HZ, tolerance_cents: float = TOLERANCE_CENTS, progress=None) -> Chart:
     """Compute the drift chart of ``instrument`` over ``climates``.
 
     Parameters
     ----------
-    instrument : drift.bore.Instrument
+    instrument : drift.instrument.Instrument
     climates : list of Climate
     reference : Climate, optional
         The condition drift is measured from (default: :func:`design_climate`).
@@ -218,23 +188,46 @@ def drift_chart(instrument, climates: list[Climate], reference: Climate | None =
         Notes whose drift after the joint change exceeds this [cent] are listed.
     progress : callable, optional
         Called with no argument after each climate is done (and once for the reference).
-    """
-    from drift import pitch
 
+    Returns
+    -------
+    Chart
+        A :class:`DriftRow` per note and climate (frequency [Hz], drift against the reference
+        and offset from equal temperament [cent]) and a :class:`ClimateSummary` per climate
+        (mean, spread, the joint change [m] that centres the mean, what stays out of tune).
+
+    Raises
+    ------
+    drift.errors.DriftError
+        When the instrument file names no notes.
+
+    Notes
+    -----
+    Each climate's bore state comes from :func:`drift.thermal.climate_profile`, each note's
+    frequency from :func:`drift.pitch.note_frequencies`; the joint change from
+    :func:`joint_change`.
+
+    Examples
+    --------
+    >>> from drift import drift_chart, load_climate, load_instrument
+    >>> chart = drift_chart(load_instrument("cylindrical-reed"), [load_climate("sunny-lawn")])
+    >>> chart.summary[0].mean_drift_cents > 0
+    True
+    """
     if not instrument.notes:
         raise DriftError(f"{instrument.name}: the instrument file has no [[note]]; a chart needs named notes")
     reference = reference or design_climate(instrument)
     names = [n.name for n in instrument.notes]
-    equal = np.array([pitch.equal_temperament_hz(n, a4_hz) for n in names])
-    reference_hz = frequencies(instrument, bore_profile(instrument, reference))
+    equal = np.array([equal_temperament_hz(n, a4_hz) for n in names])
+    reference_hz = frequencies(instrument, thermal.climate_profile(instrument, reference))
     if progress:
         progress()
     rows, summary = [], []
     for c in climates:
-        profile = bore_profile(instrument, c)
+        profile = thermal.climate_profile(instrument, c)
         f = frequencies(instrument, profile)
-        drift = _cents(f, reference_hz)
-        offset = _cents(f, equal)
+        drift = cents(f, reference_hz)
+        offset = cents(f, equal)
         for note, value, d, o in zip(instrument.notes, f, drift, offset):
             rows.append(DriftRow(note.name, note.register, c.name, float(value), float(d), float(o)))
         summary.append(_summary(instrument, c, profile, drift, reference_hz, names, tolerance_cents))

@@ -13,6 +13,7 @@ import sys
 import click
 
 from drift import __version__
+from drift.constants import A4_HZ, TOLERANCE_CENTS
 
 FORMAT_OPTION = click.option(
     "--format",
@@ -29,8 +30,8 @@ OUTPUT_OPTION = click.option("--output", "output", type=click.Path(dir_okay=Fals
 
 
 def _range(name: str):
-    """A click range type from the air model's limits (drift.air.LIMITS)."""
-    from drift.air import LIMITS
+    """A click range type from the limits of the conditions (drift.constants.LIMITS)."""
+    from drift.constants import LIMITS
 
     low, high, _ = LIMITS[name]
     return click.FloatRange(low, high)
@@ -57,12 +58,12 @@ def reports_errors(command):
 
 def pressure_pa(pressure_kpa: float | None, altitude_m: float | None) -> float:
     """Pressure [Pa] from --pressure or --altitude (not both); sea level when neither is given."""
-    from drift import air, constants
+    from drift import climate, constants
 
     if pressure_kpa is not None and altitude_m is not None:
         raise click.UsageError("give --pressure or --altitude, not both")
     if altitude_m is not None:
-        return float(air.pressure_from_altitude(altitude_m))
+        return float(climate.pressure_from_altitude(altitude_m))
     return constants.STANDARD_PRESSURE if pressure_kpa is None else pressure_kpa * 1e3
 
 
@@ -114,15 +115,13 @@ def air_command(temp_c, rh_pct, pressure_kpa, altitude_m, co2_ppm, breath_fracti
     The mixture is taken to --temp; water beyond saturation there condenses and is reported.
     """
     from drift import air, render
+    from drift.climate import Breath, Room
     from drift.constants import ZERO_CELSIUS
 
-    p = pressure_pa(pressure_kpa, altitude_m)
-    breath = air.Breath(temperature_k=breath_temp_c + ZERO_CELSIUS, co2_fraction=breath_co2_pct / 100.0)
-    t = temp_c + ZERO_CELSIUS
-    state = air.air_state(t, p, t, rh_pct / 100.0, co2_ppm * 1e-6, breath_fraction, breath)
-    doc = air.state_record(state, breath_fraction)
-    render.emit(doc, fmt, render.air_table, render.air_csv)
-
+    room = Room(temp_c + ZERO_CELSIUS, pressure_pa(pressure_kpa, altitude_m), rh_pct / 100.0, co2_ppm * 1e-6)
+    breath = Breath(temperature_k=breath_temp_c + ZERO_CELSIUS, co2_fraction=breath_co2_pct / 100.0)
+    state = air.air_properties(room, breath_fraction, breath)
+    render.emit(render.air_document(state, breath_fraction), fmt, render.air_table, render.air_csv)
 
 
 @main.command("climates")
@@ -132,9 +131,8 @@ def climates_command(fmt):
     """List the bundled climates with their conditions."""
     from drift import climate, render
 
-    doc = {"climates": [climate.climate_record(c) for c in climate.bundled_climates()]}
+    doc = {"climates": [render.climate_record(c) for c in climate.bundled_climates()]}
     render.emit(doc, fmt, render.climates_table, render.listing_csv)
-
 
 
 class LazyProgress:
@@ -166,17 +164,16 @@ class LazyProgress:
             self.bar.__exit__(None, None, None)
 
 
-
-
 @main.command("chart")
 @INSTRUMENT_ARGUMENT
 @click.option("--climate", "climate_names", multiple=True, metavar="CLIMATE",
               help="Bundled climate name or climate file; repeat for several. Default: every bundled climate.")
 @click.option("--reference", "reference_name", default=None, metavar="CLIMATE",
               help="Condition the drift is measured from. Default: the instrument's [design] condition.")
-@click.option("--a4", "a4_hz", type=click.FloatRange(380.0, 480.0), default=440.0, show_default=True,
+@click.option("--a4", "a4_hz", type=click.FloatRange(380.0, 480.0), default=A4_HZ, show_default=True,
               help="Pitch of A4 for the offset from equal temperament [Hz] (ISO 16: 440).")
-@click.option("--tolerance", "tolerance_cents", type=click.FloatRange(0.0, 100.0, min_open=True), default=5.0,
+@click.option("--tolerance", "tolerance_cents", type=click.FloatRange(0.0, 100.0, min_open=True),
+              default=TOLERANCE_CENTS,
               show_default=True,
               help="In-tune threshold [cents] after the joint change (5 cents is common practice).")
 @FORMAT_OPTION
@@ -188,9 +185,10 @@ def chart_command(instrument, climate_names, reference_name, a4_hz, tolerance_ce
     INSTRUMENT is a bundled instrument name or an instrument file (default: the bundled
     default instrument, see `drift instruments`).
     """
-    from drift import advice, bore, chart, climate, render
+    from drift import advice, chart, climate, render
+    from drift.instrument import DEFAULT_INSTRUMENT, load_instrument
 
-    inst = bore.load_instrument(instrument or bore.DEFAULT_INSTRUMENT)
+    inst = load_instrument(instrument or DEFAULT_INSTRUMENT)
     climates = ([climate.load_climate(c) for c in climate_names] if climate_names
                 else climate.bundled_climates())
     reference = climate.load_climate(reference_name) if reference_name else None
@@ -199,10 +197,8 @@ def chart_command(instrument, climate_names, reference_name, a4_hz, tolerance_ce
         result = chart.drift_chart(inst, climates, reference, a4_hz, tolerance_cents, progress)
     finally:
         progress.close()
-    doc = result.document()
-    doc["cautions"] = advice.chart_cautions(inst.material, climates)
-    doc["care_note"] = advice.DEFER if doc["cautions"] else None
-    render.emit(doc, fmt, render.chart_table, render.chart_csv, output)
+    cautions = [c for where in climates for c in advice.cautions(inst.material, where)]
+    render.emit(render.chart_document(result, cautions), fmt, render.chart_table, render.chart_csv, output)
 
 
 @main.command("warmup")
@@ -228,21 +224,23 @@ def warmup_command(instrument, climate_name, plan_text, step_s, reference_name, 
     played and cools during rests; each row gives the drift in cents from the reference, and the
     report ends with the time each play phase takes to come within 2 cents of the steady state.
     """
-    from drift import air, bore, climate, render, thermal
+    from drift import climate, render, thermal, warmup
+    from drift.constants import ZERO_CELSIUS
     from drift.errors import DriftError
+    from drift.instrument import DEFAULT_INSTRUMENT, load_instrument
 
     try:
-        plan = thermal.parse_plan(plan_text)
+        plan = climate.parse_plan(plan_text)
     except DriftError as error:
         raise click.BadParameter(str(error), param_hint="--plan") from None
-    inst = bore.load_instrument(instrument or bore.DEFAULT_INSTRUMENT)
+    inst = load_instrument(instrument or DEFAULT_INSTRUMENT)
     design = inst.design
     if climate_name:
         where = climate.load_climate(climate_name)
         room, breath, climate_label = where.room, where.player.breath, where.name
     else:
-        room, breath = design.room(), air.DEFAULT_BREATH
-        climate_label = (f"design room ({design.temperature_k - 273.15:g} °C, "
+        room, breath = design.room(), climate.DEFAULT_BREATH
+        climate_label = (f"design room ({design.temperature_k - ZERO_CELSIUS:g} °C, "
                          f"{design.relative_humidity * 100:g} % RH)")
     if reference_name:
         ref_climate = climate.load_climate(reference_name)
@@ -252,14 +250,13 @@ def warmup_command(instrument, climate_name, plan_text, step_s, reference_name, 
         reference_label = "design condition" + (" (played)" if design.playing else " (at rest)")
     # Profiles to evaluate: the samples, the reference, the steady state, and about 20 for the
     # settle-time search.
-    progress = LazyProgress(len(thermal.sample_times(plan, step_s)) + 22, "computing")
+    progress = LazyProgress(len(warmup.sample_times(plan, step_s)) + 22, "computing")
     try:
-        result = thermal.warmup(inst, room, plan, step_s, breath, reference, progress=progress,
-                                names=(climate_label, reference_label))
+        result = warmup.warmup_timeline(inst, room, plan, step_s, breath, reference, progress=progress,
+                                        names=(climate_label, reference_label))
     finally:
         progress.close()
-    doc = result.document()
-    render.emit(doc, fmt, render.warmup_table, render.warmup_csv, output)
+    render.emit(render.warmup_document(result), fmt, render.warmup_table, render.warmup_csv, output)
 
 
 @main.command("resonances")
@@ -280,10 +277,12 @@ def resonances_command(instrument, note_name, temp_c, rh_pct, pressure_kpa, alti
     see `drift instruments`). The bore is filled with uniform room air at the given condition and
     its walls are at that temperature.
     """
-    from drift import air, bore, pitch, render
+    from drift import pitch, render
+    from drift.climate import Room
     from drift.constants import ZERO_CELSIUS
+    from drift.instrument import DEFAULT_INSTRUMENT, load_instrument
 
-    inst = bore.load_instrument(instrument or bore.DEFAULT_INSTRUMENT)
+    inst = load_instrument(instrument or DEFAULT_INSTRUMENT)
     notes = inst.fingerings()
     if note_name is not None:
         chosen = tuple(n for n in notes if n.name == note_name)
@@ -292,13 +291,9 @@ def resonances_command(instrument, note_name, temp_c, rh_pct, pressure_kpa, alti
             raise click.BadParameter(f"{inst.name} has no note '{note_name}'; its notes: {names}",
                                      param_hint="--note")
         notes = chosen
-    room = air.Room(temp_c + ZERO_CELSIUS, pressure_pa(pressure_kpa, altitude_m), rh_pct / 100.0, co2_ppm * 1e-6)
-    found = pitch.resonances(inst, air.BoreProfile.uniform(room), count=count, notes=notes, lossless=lossless)
-    named = bool(inst.notes)
-    doc = {"instrument": inst.name,
-           "fingerings": [{"note": n.name, "register": n.register if named else None,
-                           "resonances_hz": [float(f) for f in res]} for n, res in zip(notes, found)]}
-    render.emit(doc, fmt, render.resonances_table, render.resonances_csv)
+    room = Room(temp_c + ZERO_CELSIUS, pressure_pa(pressure_kpa, altitude_m), rh_pct / 100.0, co2_ppm * 1e-6)
+    found = pitch.find_resonances(inst, room, count=count, notes=notes, lossless=lossless)
+    render.emit(render.resonances_document(found), fmt, render.resonances_table, render.resonances_csv)
 
 
 @main.command("instruments")
@@ -306,10 +301,10 @@ def resonances_command(instrument, note_name, temp_c, rh_pct, pressure_kpa, alti
 @reports_errors
 def instruments_command(fmt):
     """List the bundled instruments with a one-line description."""
-    from drift import bore, render
+    from drift import render
+    from drift.instrument import bundled_instruments
 
-    doc = {"instruments": [bore.instrument_record(bore.load_instrument(name))
-                           for name, _ in bore.bundled_instruments()]}
+    doc = {"instruments": [render.instrument_record(i) for i in bundled_instruments()]}
     render.emit(doc, fmt, render.instruments_table, render.listing_csv)
 
 

@@ -1,21 +1,29 @@
-"""Climates: the room around the instrument and how it is being played.
+"""Climates: the room around the instrument, the player, and the play/rest plan.
 
 A climate file (TOML, documented in docs/formats.md) gives the room air (temperature, humidity,
 pressure or altitude, CO2) and the player (playing or resting, minutes played, breath). Bundled
 climates live in ``climates/`` at the top of the repository, shipped in the wheel as the package
-``drift.climates``.
+``drift.climates``. This module also holds the ISO 2533 standard atmosphere (pressure from
+altitude), the player's breath and blowing, and play/rest plans.
+
+References
+----------
+ISO 2533:1975. Standard Atmosphere.
 """
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass, field
-from importlib import resources
 from pathlib import Path
+from typing import Sequence
 
-from drift import air
-from drift.constants import DEFAULT_CO2_FRACTION, STANDARD_PRESSURE, ZERO_CELSIUS
-from drift.errors import InputFileError
-from drift.files import Table, read_toml
+import numpy as np
+
+from drift import constants as K
+from drift.constants import DEFAULT_CO2_FRACTION, LIMITS, STANDARD_PRESSURE, ZERO_CELSIUS
+from drift.errors import InputFileError, OutOfRangeError, check_range
+from drift.files import Table, bundled_files, bundled_folder, load_named
 
 TOP_KEYS = ("name", "description", "air", "player")
 AIR_KEYS = ("temperature_c", "relative_humidity_pct", "pressure_kpa", "altitude_m", "co2_ppm")
@@ -23,6 +31,180 @@ PLAYER_KEYS = ("playing", "minutes_played", "breath_temperature_c", "breath_co2_
 
 #: Relative humidity assumed when a climate file gives none [0-1] (common practice for indoor air).
 DEFAULT_RELATIVE_HUMIDITY = 0.5
+
+
+def pressure_from_altitude(altitude_m):
+    """Static pressure [Pa] of the ISO 2533 standard atmosphere at a geometric altitude [m].
+
+    Troposphere layer: geopotential altitude H = r z / (r + z), then
+    p = p0 (1 - L H / T0) ** (g0 / (R L)), with p0 = 101325 Pa, T0 = 288.15 K,
+    L = 0.0065 K/m, g0 = 9.80665 m/s^2, R = 287.05287 J/(kg K) (ISO 2533:1975, Eqs. 8, 12).
+    Valid here from -400 m to 5000 m.
+    """
+    z = np.asarray(altitude_m, dtype=float)
+    check_range("altitude_m", z)
+    h = K.EARTH_RADIUS * z / (K.EARTH_RADIUS + z)
+    exponent = K.STANDARD_GRAVITY / (K.AIR_GAS_CONSTANT * K.LAPSE_RATE)
+    return K.STANDARD_PRESSURE * (1.0 - K.LAPSE_RATE * h / K.STANDARD_TEMPERATURE) ** exponent
+
+
+@dataclass(frozen=True)
+class Room:
+    """The air around the instrument.
+
+    Attributes: temperature_k [K], pressure_pa [Pa], relative_humidity [0-1],
+    co2_fraction [mol/mol, of the dry air].
+    """
+
+    temperature_k: float
+    pressure_pa: float = K.STANDARD_PRESSURE
+    relative_humidity: float = 0.0
+    co2_fraction: float = K.DEFAULT_CO2_FRACTION
+
+    def __post_init__(self):
+        check_range("temperature_c", self.temperature_k, offset=-K.ZERO_CELSIUS)
+        check_range("pressure_kpa", self.pressure_pa, scale=1e-3)
+        check_range("relative_humidity_pct", self.relative_humidity, scale=100.0)
+        check_range("co2_ppm", self.co2_fraction, scale=1e6)
+
+
+@dataclass(frozen=True)
+class Breath:
+    """Exhaled breath as it leaves the player.
+
+    Defaults (from memory, textbook respiratory physiology, e.g. West, *Respiratory Physiology*):
+    mixed expired gas near 16 % O2 and 4-5 % CO2 on a dry basis; exhaled air leaves the mouth
+    near 34-35 °C, saturated with water vapour.
+
+    Attributes
+    ----------
+    temperature_k : float
+        Breath temperature [K] (default 308.15 K = 35 °C).
+    co2_fraction : float
+        CO2 in the dry part of the breath [mol/mol] (default 0.045).
+    o2_fraction : float
+        O2 in the dry part of the breath [mol/mol] (default 0.16).
+    """
+
+    temperature_k: float = 308.15
+    co2_fraction: float = 0.045
+    o2_fraction: float = 0.16
+
+    def __post_init__(self):
+        check_range("temperature_c", self.temperature_k, offset=-K.ZERO_CELSIUS)
+        check_range("breath_co2_pct", self.co2_fraction, scale=100.0)
+        check_range("breath_o2_pct", self.o2_fraction, scale=100.0)
+
+
+DEFAULT_BREATH = Breath()
+
+
+@dataclass(frozen=True)
+class Blowing:
+    """How the instrument is blown and held: the breath flow through the bore while playing, how
+    breath leaves it during rests, and the air moving past its outside.
+
+    Attributes
+    ----------
+    flow_m3_s : float
+        Mean volume flow of breath into the bore while playing [m^3/s], at the breath's
+        temperature, averaged over the playing time (breaths included).
+    inlet_breath_fraction : float
+        Mole fraction of breath in the gas entering the bore [0-1]: 1 for reeds and lips; less for
+        a jet, whose bore draws in room air entrained by the jet.
+    exchange_time_s : float
+        Time constant [s] with which breath gas in a resting bore gives way to room air.
+    heat_transfer_factor : float
+        Multiplier [-] on the internal convection coefficient (1 = the steady-flow correlations).
+    air_speed_m_s : float
+        Speed of the room air across the outside of the instrument [m/s]: draughts plus the
+        instrument's own motion in the player's hands (0 = still air, natural convection only).
+    """
+
+    flow_m3_s: float
+    inlet_breath_fraction: float = 1.0
+    exchange_time_s: float = 30.0
+    heat_transfer_factor: float = 1.0
+    air_speed_m_s: float = 0.1
+
+    def __post_init__(self):
+        if not (0.0 <= self.flow_m3_s <= 10e-3) or not math.isfinite(self.flow_m3_s):
+            raise OutOfRangeError(
+                f"breath flow {self.flow_m3_s * 1e3:g} L/s is outside the allowed range 0 to 10 L/s")
+        if not 0.0 <= self.inlet_breath_fraction <= 1.0:
+            raise OutOfRangeError(
+                f"inlet breath fraction {self.inlet_breath_fraction:g} is outside the allowed range 0 to 1")
+        if not self.exchange_time_s > 0.0:
+            raise OutOfRangeError("breath exchange time must be positive")
+        if not self.heat_transfer_factor > 0.0:
+            raise OutOfRangeError("heat transfer factor must be positive")
+        if not 0.0 <= self.air_speed_m_s <= 20.0:
+            raise OutOfRangeError(
+                f"air speed {self.air_speed_m_s:g} m/s is outside the allowed range 0 to 20 m/s")
+
+
+#: Default blowing by excitation (estimates; see docs/physics.md, "Thermal state"). Reed and lips
+#: send their whole flow down the bore; players' flows while sounding are of order 0.1-0.3 L/s
+#: (Bouhuys 1965, J. Acoust. Soc. Am. 37, 453-456, measured flows of this order on woodwind and
+#: brass players; from memory). The defaults are means over the playing time, breaths and short
+#: rests included: 0.10 L/s for a reed, 0.15 L/s for lips. A jet blows most of its breath (order
+#: 0.3 L/s) across the embouchure hole into the room; its bore sees a small net through-flow, taken
+#: as 0.03 L/s, half of it entrained room air (estimates). The 30 s exchange time and the 0.1 m/s
+#: air speed are justified in docs/physics.md.
+DEFAULT_BLOWING = {
+    "reed": Blowing(flow_m3_s=0.10e-3),
+    "lips": Blowing(flow_m3_s=0.15e-3),
+    "jet": Blowing(flow_m3_s=0.03e-3, inlet_breath_fraction=0.5),
+}
+
+
+def default_blowing(excitation: str) -> Blowing:
+    """The default :class:`Blowing` of an excitation ('reed', 'lips' or 'jet')."""
+    if excitation not in DEFAULT_BLOWING:
+        raise InputFileError(f"excitation '{excitation}' is not allowed; use one of: reed, lips, jet")
+    return DEFAULT_BLOWING[excitation]
+
+
+PHASES = ("play", "rest")
+
+
+@dataclass(frozen=True)
+class Phase:
+    """One part of a plan: playing or resting for a duration [s]."""
+
+    state: str
+    duration_s: float
+
+    def __post_init__(self):
+        if self.state not in PHASES:
+            raise OutOfRangeError(f"plan state '{self.state}' is not allowed; use play or rest")
+        if not (0.0 < self.duration_s <= K.LONGEST_PLAN_S):
+            raise OutOfRangeError(
+                f"plan duration {self.duration_s / 60.0:g} min is outside the allowed range "
+                f"(more than 0, at most {K.LONGEST_PLAN_S / 60:g} min)")
+
+
+def parse_plan(text: str) -> tuple[Phase, ...]:
+    """Parse a plan such as ``"play:10,rest:3,play:5"`` (durations in minutes) into phases."""
+    phases = []
+    for part in (p.strip() for p in text.split(",")):
+        state, sep, minutes = part.partition(":")
+        state = state.strip().lower()
+        if not sep or state not in PHASES:
+            raise OutOfRangeError(
+                f"plan part '{part}' is not of the form play:MINUTES or rest:MINUTES")
+        try:
+            value = float(minutes)
+        except ValueError:
+            raise OutOfRangeError(
+                f"plan part '{part}': '{minutes.strip()}' is not a number of minutes") from None
+        phases.append(Phase(state, value * 60.0))
+    return tuple(phases)
+
+
+def plan_duration_s(plan: Sequence[Phase]) -> float:
+    """Total duration of a plan [s]."""
+    return float(sum(p.duration_s for p in plan))
 
 
 @dataclass(frozen=True)
@@ -35,12 +217,12 @@ class Player:
         False: the instrument rests at room temperature, full of room air.
     minutes_played : float or None
         Minutes of playing from a cold start; None: played long enough to reach steady state.
-    breath : air.Breath
+    breath : Breath
     """
 
     playing: bool = True
     minutes_played: float | None = None
-    breath: air.Breath = air.DEFAULT_BREATH
+    breath: Breath = DEFAULT_BREATH
 
 
 @dataclass(frozen=True)
@@ -48,7 +230,7 @@ class Climate:
     """A named condition: the room air and the player."""
 
     name: str
-    room: air.Room
+    room: Room
     player: Player = field(default_factory=Player)
     description: str = ""
     source: str = ""
@@ -58,9 +240,8 @@ class Climate:
         return self.room.temperature_k - ZERO_CELSIUS
 
 
-
 def _limits(name: str) -> dict:
-    low, high, unit = air.LIMITS[name]
+    low, high, unit = LIMITS[name]
     return {"low": low, "high": high, "unit": unit}
 
 
@@ -79,13 +260,13 @@ def parse_climate(data: dict, path: str | Path) -> Climate:
     if air_table.has("pressure_kpa"):
         pressure = air_table.number("pressure_kpa", **_limits("pressure_kpa")) * 1e3
     elif air_table.has("altitude_m"):
-        pressure = float(air.pressure_from_altitude(air_table.number("altitude_m", **_limits("altitude_m"))))
+        pressure = float(pressure_from_altitude(air_table.number("altitude_m", **_limits("altitude_m"))))
     co2_ppm = air_table.number("co2_ppm", DEFAULT_CO2_FRACTION * 1e6, **_limits("co2_ppm"))
-    room = air.Room(temperature_c + ZERO_CELSIUS, pressure, rh_pct / 100.0, co2_ppm * 1e-6)
+    room = Room(temperature_c + ZERO_CELSIUS, pressure, rh_pct / 100.0, co2_ppm * 1e-6)
 
     player_table = top.table("player", PLAYER_KEYS)
-    default = air.DEFAULT_BREATH
-    breath = air.Breath(
+    default = DEFAULT_BREATH
+    breath = Breath(
         temperature_k=player_table.number("breath_temperature_c", default.temperature_k - ZERO_CELSIUS,
                                           **_limits("temperature_c")) + ZERO_CELSIUS,
         co2_fraction=player_table.number("breath_co2_pct", default.co2_fraction * 100,
@@ -95,58 +276,56 @@ def parse_climate(data: dict, path: str | Path) -> Climate:
     )
     player = Player(
         playing=player_table.boolean("playing", True),
-        minutes_played=player_table.number("minutes_played", None, low=0.0, high=600.0, unit="min"),
+        minutes_played=player_table.number("minutes_played", None, low=0.0, high=K.LONGEST_PLAN_S / 60,
+                                           unit="min"),
         breath=breath,
     )
     return Climate(name, room, player, description, str(path))
 
 
 def _bundled_dir():
-    """The folder of bundled climates: the installed package ``drift.climates``, or, when drift is
-    imported from a source checkout, ``climates/`` beside the package."""
-    try:
-        folder = resources.files("drift.climates")
-        if folder.is_dir():
-            return folder
-    except ModuleNotFoundError:
-        pass
-    return Path(__file__).resolve().parent.parent / "climates"
+    """The folder of the bundled climates (``climates/`` beside the package in a source checkout)."""
+    return bundled_folder("drift.climates", Path(__file__).resolve().parent.parent / "climates")
 
 
 def bundled_climates() -> list[Climate]:
-    """Every bundled climate, sorted by file name."""
-    folder = _bundled_dir()
-    files = sorted((f for f in folder.iterdir() if f.name.endswith(".toml")), key=lambda f: f.name)
-    return [parse_climate(read_toml(f, "climate file"), f"climates/{f.name}") for f in files]
+    """Every bundled climate (invented demonstration conditions), sorted by name.
+
+    Examples
+    --------
+    >>> from drift import bundled_climates
+    >>> [c.name for c in bundled_climates()][:3]
+    ['cold-rehearsal', 'cooled-hall', 'frozen-parade']
+    """
+    files = bundled_files(_bundled_dir())
+    return [load_climate(name) for name in sorted(files)]
 
 
-def load_climate(name_or_path: str) -> Climate:
-    """A bundled climate by name, or a climate file by path."""
-    candidate = Path(name_or_path)
-    if candidate.suffix == ".toml" or candidate.exists():
-        return parse_climate(read_toml(candidate, "climate file"), candidate)
-    climates = {c.name: c for c in bundled_climates()}
-    if name_or_path in climates:
-        return climates[name_or_path]
-    import difflib
+def load_climate(source: str | Path) -> Climate:
+    """A climate by bundled name (see :func:`bundled_climates`) or by path to a climate file.
 
-    close = difflib.get_close_matches(name_or_path, list(climates), n=1)
-    hint = f"; did you mean '{close[0]}'?" if close else ""
-    raise InputFileError(
-        f"climate '{name_or_path}' is neither a bundled climate nor a file{hint} "
-        f"(bundled: {', '.join(climates)})"
-    )
+    Parameters
+    ----------
+    source : str or path
+        A bundled name, or the path of a climate file (docs/formats.md).
 
+    Returns
+    -------
+    Climate
+        The room (SI units) and the player.
 
-def climate_record(c: Climate) -> dict:
-    """A climate as a flat dict in boundary units."""
-    return {
-        "name": c.name,
-        "temperature_c": round(c.temperature_c, 3),
-        "relative_humidity_pct": round(c.room.relative_humidity * 100, 3),
-        "pressure_kpa": round(c.room.pressure_pa * 1e-3, 3),
-        "co2_ppm": round(c.room.co2_fraction * 1e6, 1),
-        "playing": c.player.playing,
-        "minutes_played": c.player.minutes_played,
-        "description": c.description,
-    }
+    Raises
+    ------
+    drift.errors.InputFileError
+        For unknown names (with a did-you-mean suggestion and the bundled names) and for any
+        bad key or value, naming the file and the key.
+
+    Examples
+    --------
+    >>> from drift import load_climate
+    >>> church = load_climate("winter-church")
+    >>> round(church.room.temperature_k - 273.15, 1)
+    9.0
+    """
+    data, label = load_named(source, _bundled_dir(), "climates", "climate")
+    return parse_climate(data, label)

@@ -1,8 +1,12 @@
-"""The project's error types.
+"""The project's error types, and the range check every layer uses.
 
 Every error a user can cause by input derives from :class:`DriftError`; the command line turns
 it into a one-line message and exit status 2.
 """
+
+import numpy as np
+
+from drift.constants import LIMITS
 
 
 class DriftError(Exception):
@@ -15,3 +19,21 @@ class OutOfRangeError(DriftError, ValueError):
 
 class InputFileError(DriftError, ValueError):
     """An instrument, climate or materials file is unreadable or has a bad key or value."""
+
+
+def check_range(name: str, value, scale: float = 1.0, offset: float = 0.0) -> None:
+    """Raise :class:`OutOfRangeError` if ``value*scale + offset`` leaves ``LIMITS[name]``.
+
+    ``scale`` and ``offset`` turn an SI value into the boundary unit of ``name`` (for example
+    ``offset=-273.15`` for a temperature in K checked against °C); see
+    :data:`drift.constants.LIMITS`. NaN is out of range.
+    """
+    low, high, unit = LIMITS[name]
+    shown = np.asarray(value, dtype=float) * scale + offset
+    bad = ~((shown >= low - 1e-9) & (shown <= high + 1e-9))
+    if np.any(bad):
+        worst = np.atleast_1d(shown)[np.atleast_1d(bad)][0]
+        label = name.replace("_", " ")
+        raise OutOfRangeError(
+            f"{label} {worst:g} {unit} is outside the allowed range {low:g} to {high:g} {unit}".strip()
+        )

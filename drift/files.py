@@ -10,6 +10,7 @@ from __future__ import annotations
 import difflib
 import math
 import tomllib
+from importlib import resources
 from pathlib import Path
 
 from drift.errors import InputFileError
@@ -27,6 +28,65 @@ def read_toml(path: str | Path, what: str = "file") -> dict:
         raise InputFileError(f"{path}: cannot read the {what}: {error.strerror}") from None
     except tomllib.TOMLDecodeError as error:
         raise InputFileError(f"{path}: not valid TOML: {error}") from None
+
+
+def read_toml_text(text: str, label: str, what: str = "file") -> dict:
+    """Parse TOML text (a bundled file's contents); a malformed text raises InputFileError."""
+    try:
+        return tomllib.loads(text)
+    except tomllib.TOMLDecodeError as error:
+        raise InputFileError(f"{label}: not valid TOML: {error}") from None
+
+
+def choose(name: str, options, what: str) -> str:
+    """``name`` if it is one of ``options``; else InputFileError naming ``what``, a did-you-mean
+    suggestion and the allowed names."""
+    options = sorted(options)
+    if name in options:
+        return name
+    close = difflib.get_close_matches(name, options, n=1)
+    hint = f" (did you mean '{close[0]}'?)" if close else ""
+    raise InputFileError(f"unknown {what} '{name}'{hint}. Allowed: {', '.join(options)}")
+
+
+def bundled_folder(package: str, fallback: Path):
+    """The folder of a data package; ``fallback`` when the package is not importable (a data folder
+    beside the package in a source checkout, shipped as the package only in the wheel)."""
+    try:
+        folder = resources.files(package)
+        if folder.is_dir():
+            return folder
+    except ModuleNotFoundError:
+        pass
+    return fallback
+
+
+def bundled_files(folder) -> dict:
+    """The ``.toml`` files of a folder (a path or a package resource), by name without the suffix."""
+    return {entry.name[:-5]: entry for entry in folder.iterdir() if entry.name.endswith(".toml")}
+
+
+def load_named(source: str | Path, folder, label_prefix: str, what: str) -> tuple[dict, str]:
+    """Parsed TOML of a bundled file by name, or of a file by path, and a label for messages.
+
+    A value naming an existing file, ending in ``.toml`` or holding a ``/`` is read as a path;
+    anything else is looked up among the ``.toml`` files of ``folder`` (:func:`bundled_folder`),
+    labelled ``label_prefix/NAME.toml`` in messages.
+    Unknown names raise InputFileError with a did-you-mean suggestion and the bundled names.
+    """
+    text = str(source)
+    path = Path(text)
+    if path.is_file() or text.endswith(".toml") or "/" in text:
+        return read_toml(path, f"{what} file"), str(path)
+    files = bundled_files(folder)
+    if text not in files:
+        close = difflib.get_close_matches(text, list(files), n=1)
+        hint = f" (did you mean '{close[0]}'?)" if close else ""
+        raise InputFileError(f"unknown {what} '{text}'{hint}. Bundled: {', '.join(sorted(files))}; "
+                             f"or give the path of a .toml file")
+    resource = files[text]
+    label = f"{label_prefix}/{resource.name}"
+    return read_toml_text(resource.read_text(encoding="utf-8"), label, what), label
 
 
 class Table:

@@ -15,7 +15,9 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from drift import bore, pitch
+from drift import pitch, thermal
+from drift.instrument import Instrument
+from drift.scale import cents, equal_temperament_hz
 from drift.errors import DriftError
 
 
@@ -25,7 +27,7 @@ class LayoutResult:
 
     Attributes
     ----------
-    instrument : drift.bore.Instrument
+    instrument : drift.instrument.Instrument
         The instrument with the tuned holes (and bore length).
     deviations_cents : ndarray
         Each note's playing frequency relative to its target [cent], in note order.
@@ -35,7 +37,7 @@ class LayoutResult:
         Residual evaluations used.
     """
 
-    instrument: bore.Instrument
+    instrument: Instrument
     deviations_cents: np.ndarray
     success: bool
     message: str
@@ -47,14 +49,14 @@ class LayoutResult:
         return float(np.max(np.abs(self.deviations_cents)))
 
 
-def _profile(instrument, profile):
-    return pitch.design_profile(instrument) if profile is None else profile
+def _profile(instrument: Instrument, profile):
+    return thermal.design_profile(instrument) if profile is None else profile
 
 
-def deviations(instrument, profile=None, **kwargs) -> np.ndarray:
+def deviations(instrument: Instrument, profile: thermal.BoreProfile | None = None, **kwargs) -> np.ndarray:
     """Deviation [cent] of every named note from equal temperament at the design A4.
 
-    ``profile`` defaults to the design condition (:func:`drift.pitch.design_profile`); NaN
+    ``profile`` defaults to the design condition (:func:`drift.thermal.design_profile`); NaN
     (a register out of reach) becomes +1200 cent so a solver sees it as badly out of tune.
     """
     res = pitch.note_frequencies(instrument, _profile(instrument, profile), **kwargs)
@@ -62,17 +64,18 @@ def deviations(instrument, profile=None, **kwargs) -> np.ndarray:
     return np.where(np.isfinite(dev), dev, 1200.0)
 
 
-def place_holes(instrument, order, profile=None, diameters_m=None, search_m=(0.0, None)):
+def place_holes(instrument: Instrument, order, profile: thermal.BoreProfile | None = None, diameters_m=None,
+                search_m=(0.0, None)):
     """Starting layout: place holes one at a time, each tuning the note it first opens.
 
     Parameters
     ----------
-    instrument : drift.bore.Instrument
+    instrument : drift.instrument.Instrument
     order : sequence of (hole name, note index)
         Holes in the order to place them (usually from the open end upwards) and, for each, the
         index of the note (register 1) it tunes: the fingering in which it is the highest open
         hole below the closed ones.
-    profile : drift.air.BoreProfile, optional
+    profile : drift.thermal.BoreProfile, optional
         Default: the design condition.
     diameters_m : dict, optional
         Diameters to give the holes [m] before placing them.
@@ -96,13 +99,13 @@ def place_holes(instrument, order, profile=None, diameters_m=None, search_m=(0.0
     limit = high
     for name, note_index in order:
         note = ins.notes[note_index]
-        target = pitch.equal_temperament_hz(note.name, ins.design.a4_hz)
+        target = equal_temperament_hz(note.name, ins.design.a4_hz)
         h0 = holes[name]
 
         def miss(x, name=name, note=note, target=target):
             trial = _move(ins, name, position_m=x)
             f = pitch.note_frequencies(trial, profile, notes=[note])[0].frequency_hz
-            return pitch.cents(f, target)
+            return cents(f, target)
 
         lo = search_m[0] + h0.diameter_m
         hi = limit - h0.diameter_m
@@ -116,7 +119,7 @@ def place_holes(instrument, order, profile=None, diameters_m=None, search_m=(0.0
     return ins
 
 
-def _move(instrument, name, position_m=None, diameter_m=None):
+def _move(instrument: Instrument, name, position_m=None, diameter_m=None):
     holes = []
     for h in instrument.holes:
         if h.name == name:
@@ -126,17 +129,18 @@ def _move(instrument, name, position_m=None, diameter_m=None):
     return instrument.with_holes(holes)
 
 
-def tune_layout(instrument, profile=None, holes=None, vary_diameters=True, diameter_bounds_m=None,
-                position_bounds_m=None, length_change_at_m=None, length_change_bounds_m=(-0.05, 0.05),
+def tune_layout(instrument: Instrument, profile: thermal.BoreProfile | None = None, holes=None,
+                vary_diameters=True, diameter_bounds_m=None, position_bounds_m=None, length_change_at_m=None,
+                length_change_bounds_m=(-0.05, 0.05),
                 min_gap_m=2e-3, diameter_weight=0.02, max_nfev=60, verbose=0) -> LayoutResult:
     """Tune hole positions and diameters (and the bore length) to equal temperament.
 
     Parameters
     ----------
-    instrument : drift.bore.Instrument
+    instrument : drift.instrument.Instrument
         Starting layout; every named note is a target (register 1, 2, ... as in the file).
-    profile : drift.air.BoreProfile, optional
-        Bore air and wall of the design condition (default :func:`drift.pitch.design_profile`).
+    profile : drift.thermal.BoreProfile, optional
+        Bore air and wall of the design condition (default :func:`drift.thermal.design_profile`).
     holes : sequence of str, optional
         Holes to adjust (default: all).
     vary_diameters : bool

@@ -1,4 +1,4 @@
-"""Note names, equal temperament, and the playing frequencies of an instrument's fingerings.
+"""The playing frequencies of an instrument's fingerings for a given state of the air in its bore.
 
 The playing frequency of a fingering in register n is taken as the n-th maximum of the input
 impedance magnitude |Z_in| for reed and lip excitation (pressure-controlled valves play near the
@@ -12,67 +12,22 @@ References
 ----------
 Benade, A. H. (1976). Fundamentals of Musical Acoustics. Oxford University Press.
 Fletcher, N. H., Rossing, T. D. (1998). The Physics of Musical Instruments, 2nd ed. Springer.
-ISO 16:1975. Acoustics - Standard tuning frequency (standard musical pitch): A4 = 440 Hz.
 """
 
 from __future__ import annotations
 
 import math
-import re
 from dataclasses import dataclass
 
 import numpy as np
 
-#: Standard tuning frequency [Hz]: A4 = 440 Hz (ISO 16:1975).
-A4_HZ = 440.0
-
-_NOTE = re.compile(r"^([A-Ga-g])([#b♯♭]{0,2})(-?\d+)$")
-_STEPS = {"C": 0, "D": 2, "E": 4, "F": 5, "G": 7, "A": 9, "B": 11}
-_SHARP_NAMES = ("C", "C#", "D", "Eb", "E", "F", "F#", "G", "Ab", "A", "Bb", "B")
-
-
-def note_to_midi(name: str) -> int:
-    """MIDI number of a note in scientific pitch notation ("A4" -> 69, "Bb3" -> 58, "C#5" -> 73).
-
-    Letters A-G, then up to two accidentals (# or b, also ♯ ♭), then the octave number (C4 is
-    middle C). Raises ValueError for anything else.
-    """
-    m = _NOTE.match(str(name).strip())
-    if not m:
-        raise ValueError("not a note name; use scientific pitch notation such as C4, F#3 or Bb5")
-    letter, acc, octave = m.groups()
-    shift = sum(1 if ch in "#♯" else -1 for ch in acc)
-    return 12 * (int(octave) + 1) + _STEPS[letter.upper()] + shift
-
-
-def midi_to_note(midi: int) -> str:
-    """Scientific-pitch name of a MIDI number, flats for Eb Ab Bb and sharps for C# F# (69 -> "A4")."""
-    midi = int(midi)
-    return f"{_SHARP_NAMES[midi % 12]}{midi // 12 - 1}"
-
-
-def equal_temperament_hz(name_or_midi, a4_hz: float = A4_HZ) -> float:
-    """Frequency [Hz] of a note in twelve-tone equal temperament: a4 * 2^((m - 69)/12)."""
-    m = note_to_midi(name_or_midi) if isinstance(name_or_midi, str) else name_or_midi
-    return a4_hz * 2.0 ** ((np.asarray(m, dtype=float) - 69.0) / 12.0)
-
-
-def cents(frequency_hz, reference_hz):
-    """Interval [cent] from ``reference_hz`` to ``frequency_hz``: 1200 log2(f / f_ref)."""
-    return 1200.0 * np.log2(np.asarray(frequency_hz, dtype=float) / np.asarray(reference_hz, dtype=float))
-
-
-def from_cents(reference_hz, interval_cents):
-    """Frequency [Hz] an interval [cent] above ``reference_hz``: f_ref 2^(c/1200)."""
-    return np.asarray(reference_hz, dtype=float) * 2.0 ** (np.asarray(interval_cents, dtype=float) / 1200.0)
-
-
-def nearest_note(frequency_hz: float, a4_hz: float = A4_HZ) -> tuple[str, float]:
-    """(name, deviation [cent]) of the equal-tempered note nearest to a frequency [Hz]."""
-    m = 69.0 + 12.0 * math.log2(frequency_hz / a4_hz)
-    mi = int(round(m))
-    return midi_to_note(mi), 100.0 * (m - mi)
-
+from drift import acoustics
+from drift.climate import Room
+from drift.constants import SEGMENT_LENGTH_M
+from drift.instrument import Instrument, Note
+from drift.scale import cents, equal_temperament_hz
+from drift.segments import expanded_segments
+from drift.thermal import BoreProfile
 
 # --------------------------------------------------------------------------------------------
 # Resonance search
@@ -91,7 +46,7 @@ def _grid(f_lo: float, f_hi: float) -> np.ndarray:
     return f_lo * 2.0 ** (GRID_STEP_OCTAVES * np.arange(n + 1))
 
 
-def find_resonances(network, open_holes, counts, minima: bool = False) -> list[np.ndarray]:
+def search_resonances(network: acoustics.Network, open_holes, counts, minima: bool = False) -> list[np.ndarray]:
     """The first resonances [Hz] of each fingering of a :class:`drift.acoustics.Network`.
 
     Parameters
@@ -122,6 +77,7 @@ def find_resonances(network, open_holes, counts, minima: bool = False) -> list[n
     sign = 1.0 if minima else -1.0
     brackets = [[] for _ in range(nf)]
     lo = GRID_START_HZ
+    prev_tail = None
     for hi in GRID_BLOCK_HZ:
         f = _grid(lo, hi)
         if lo > GRID_START_HZ:
@@ -154,7 +110,7 @@ def find_resonances(network, open_holes, counts, minima: bool = False) -> list[n
     return out
 
 
-def refine_extrema(network, open_rows, x1, x2, x3, minima: bool = False) -> np.ndarray:
+def refine_extrema(network: acoustics.Network, open_rows, x1, x2, x3, minima: bool = False) -> np.ndarray:
     """Refine extrema of |Z| [Hz] inside brackets x1 < x2 < x3 (one fingering row per bracket).
 
     Chandrupatla's bracketed minimisation (``scipy.optimize.elementwise.find_minimum``) of
@@ -207,75 +163,101 @@ class NoteFrequency:
     deviation_cents: float | None = None
 
 
-def _expansion_coefficients(instrument):
-    """(axial, radial) linear expansion coefficients [1/K] of the instrument's material, or None."""
-    if instrument.material is None:
-        return None
-    from drift import thermal
-
-    m = thermal.material(instrument.material)
-    return m.expansion_per_k, m.expansion_across_per_k
-
-
-def bore_network(instrument, profile, lossless: bool = False, max_segment_m: float | None = None,
-                 expansion: bool = True, radiation: str = "norris-sheng-1989"):
+def bore_network(instrument: Instrument, profile: BoreProfile, lossless: bool = False,
+                 max_segment_m: float = SEGMENT_LENGTH_M,
+                 radiation: str = "norris-sheng-1989") -> acoustics.Network:
     """The :class:`drift.acoustics.Network` of an instrument filled with the air of ``profile``.
 
-    The bore is discretised (:meth:`drift.bore.Instrument.segments`), the air is evaluated at
-    the segment midpoints in one batched call of ``profile.air_at``, and, when the instrument's
-    material is known and ``expansion`` is true, every segment and hole is scaled by thermal
-    expansion from the reference temperature with the wall temperature from
-    ``profile.wall_temperature_at`` (axial coefficient for lengths, across-grain coefficient for
-    diameters; :func:`drift.bore.expansion_factors`). ``radiation`` names the open-end model of
-    :func:`drift.acoustics.radiation_unflanged`.
+    The bore is discretised and expanded by the temperature of its wall
+    (:func:`drift.segments.expanded_segments`, from ``profile.wall_temperature_at``), and the air
+    is evaluated at the segment midpoints in one batched call of ``profile.air_at``.
+    ``radiation`` names the open-end model of :func:`drift.acoustics.radiation_unflanged`.
     """
-    from drift import acoustics, bore
-
-    segs = instrument.segments(max_segment_m or bore.DEFAULT_MAX_SEGMENT)
-    mid = segs.midpoints_m
-    coefficients = _expansion_coefficients(instrument) if expansion else None
-    if coefficients is not None:
-        t_ref = instrument.reference_temperature_k
-        t_seg = profile.wall_temperature_at(np.clip(mid, 0.0, None))
-        t_hole = profile.wall_temperature_at(segs.hole_position_m)
-        ax, rad = coefficients
-        segs = segs.expanded(bore.expansion_factors(t_seg, ax, t_ref), bore.expansion_factors(t_seg, rad, t_ref),
-                             bore.expansion_factors(t_hole, ax, t_ref), bore.expansion_factors(t_hole, rad, t_ref))
-        mid = segs.midpoints_m
-    state = profile.air_at(np.clip(mid, 0.0, None))
+    segs = expanded_segments(instrument, profile.wall_temperature_at, max_segment_m)
+    state = profile.air_at(np.clip(segs.midpoints_m, 0.0, None))
     return acoustics.Network(segs, state.properties, lossless=lossless, radiation=radiation)
 
 
-def resonances(instrument, profile, count: int = 5, notes=None, lossless: bool = False,
-               max_segment_m: float | None = None, radiation: str = "norris-sheng-1989",
-               minima: bool | None = None) -> list[np.ndarray]:
-    """The first ``count`` resonances [Hz] of each fingering: peaks of |Z_in| for reed and lips,
-    minima for jet (see :func:`find_resonances`).
+@dataclass(frozen=True)
+class Resonances:
+    """The resonance frequencies of an instrument's fingerings at one bore state.
 
-    ``notes`` defaults to the instrument's fingerings (:meth:`drift.bore.Instrument.fingerings`).
-    ``minima`` overrides the choice of peaks or dips (default: dips for jet only). Returns one
-    ascending array per fingering.
+    Attributes
+    ----------
+    instrument : str
+    notes : tuple of drift.instrument.Note
+        The fingerings, in the order asked.
+    frequencies_hz : list of ndarray
+        For each fingering, its first resonances in ascending order [Hz]: peaks of |Z_in| for
+        reed and lips, dips for jet (fewer than asked when the search range ends first).
     """
+
+    instrument: str
+    notes: tuple[Note, ...]
+    frequencies_hz: list[np.ndarray]
+
+
+def find_resonances(instrument: Instrument, air: Room | BoreProfile, count: int = 5, notes=None,
+                    lossless: bool = False, max_segment_m: float = SEGMENT_LENGTH_M,
+                    radiation: str = "norris-sheng-1989", minima: bool | None = None) -> Resonances:
+    """The first ``count`` resonances [Hz] of each fingering of an instrument.
+
+    Parameters
+    ----------
+    instrument : drift.instrument.Instrument
+    air : drift.climate.Room or drift.thermal.BoreProfile
+        A room (the bore filled with its air, walls at its temperature) or the air and wall along
+        the bore.
+    count : int
+        Resonances per fingering.
+    notes : sequence of drift.instrument.Note, optional
+        Fingerings (default: all of the instrument's, :meth:`~drift.instrument.Instrument.fingerings`).
+    lossless : bool
+        Drop wall and radiation losses (for validation).
+    max_segment_m : float
+        Longest segment of the discretised bore [m].
+    radiation : str
+        Open-end model (:func:`drift.acoustics.radiation_unflanged`).
+    minima : bool, optional
+        Dips instead of peaks of |Z_in| (default: dips for jet only).
+
+    Returns
+    -------
+    Resonances
+
+    Notes
+    -----
+    Peaks of |Z_in| for reed and lips, minima for jet (:func:`search_resonances`).
+
+    Examples
+    --------
+    >>> from drift import Room, find_resonances, load_instrument
+    >>> found = find_resonances(load_instrument("cylindrical-reed"), Room(293.15), count=2)
+    >>> len(found.frequencies_hz[0])
+    2
+    """
+    profile = BoreProfile.uniform(air) if isinstance(air, Room) else air
     notes = instrument.fingerings() if notes is None else tuple(notes)
     net = bore_network(instrument, profile, lossless, max_segment_m, radiation=radiation)
     mask = instrument.open_mask(notes)
     minima = instrument.excitation == "jet" if minima is None else minima
-    return find_resonances(net, mask, [count] * len(notes), minima=minima)
+    found = search_resonances(net, mask, [count] * len(notes), minima=minima)
+    return Resonances(instrument.name, notes, found)
 
 
-def note_frequencies(instrument, profile, lossless: bool = False, notes=None,
-                     max_segment_m: float | None = None, a4_hz: float | None = None,
-                     network=None) -> list[NoteFrequency]:
+def note_frequencies(instrument: Instrument, profile: BoreProfile, lossless: bool = False, notes=None,
+                     max_segment_m: float = SEGMENT_LENGTH_M, a4_hz: float | None = None,
+                     network: acoustics.Network | None = None) -> list[NoteFrequency]:
     """Playing frequency of every fingering of ``instrument`` with the bore air of ``profile``.
 
     Parameters
     ----------
-    instrument : drift.bore.Instrument
-    profile : drift.air.BoreProfile
+    instrument : drift.instrument.Instrument
+    profile : drift.thermal.BoreProfile
         Air temperature, breath fraction and wall temperature along the bore.
     lossless : bool
         Drop wall and radiation losses (for validation).
-    notes : sequence of drift.bore.Note, optional
+    notes : sequence of drift.instrument.Note, optional
         Fingerings to evaluate (default: all of the instrument's).
     max_segment_m : float, optional
         Longest segment of the discretised bore [m] (default 0.02).
@@ -291,13 +273,13 @@ def note_frequencies(instrument, profile, lossless: bool = False, notes=None,
     Notes
     -----
     Register n plays at the n-th maximum of |Z_in| (reed, lips) or n-th minimum (jet),
-    :func:`find_resonances`.
+    :func:`search_resonances`.
     """
     notes = instrument.fingerings() if notes is None else tuple(notes)
     a4 = instrument.design.a4_hz if a4_hz is None else a4_hz
     net = network or bore_network(instrument, profile, lossless, max_segment_m)
     mask = instrument.open_mask(notes)
-    found = find_resonances(net, mask, [n.register for n in notes], minima=instrument.excitation == "jet")
+    found = search_resonances(net, mask, [n.register for n in notes], minima=instrument.excitation == "jet")
     out = []
     for note, res in zip(notes, found):
         f = float(res[note.register - 1]) if len(res) >= note.register else math.nan
@@ -307,19 +289,3 @@ def note_frequencies(instrument, profile, lossless: bool = False, notes=None,
         target = float(equal_temperament_hz(note.name, a4))
         out.append(NoteFrequency(note.name, note.register, f, target, float(cents(f, target))))
     return out
-
-
-def design_profile(instrument):
-    """The bore profile of the instrument's ``[design]`` condition.
-
-    At rest (``playing = false``): uniform room air of ``instrument.design`` at room temperature
-    (:meth:`drift.air.BoreProfile.uniform`). Played (``playing = true``): the steady played state
-    of the thermal model in the design room (:func:`drift.thermal.design_profile`).
-    """
-    from drift import air
-
-    if instrument.design.playing:
-        from drift import thermal
-
-        return thermal.design_profile(instrument)
-    return air.BoreProfile.uniform(instrument.design.room())

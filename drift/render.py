@@ -1,11 +1,15 @@
-"""Rendering of results: tables (tabulate), CSV and JSON text, and safe writing of output files.
+"""Rendering of results: the documents of every command, tables (tabulate), CSV and JSON text, and
+safe writing of output files.
 
-Nothing here computes physics; every function takes plain rows or dicts built by the library.
+The library's results are dataclasses in SI units; the ``*_document`` functions here turn them into
+plain documents (dicts and lists) in boundary units (°C, mm, kPa, %, cents), which the JSON output
+shows as they are and the table and CSV functions format. Nothing here computes physics.
 """
 
 from __future__ import annotations
 
 import csv
+import dataclasses
 import io
 import json
 import math
@@ -13,6 +17,9 @@ import os
 import tempfile
 import textwrap
 from pathlib import Path
+
+from drift import advice
+from drift.constants import SPECIES, ZERO_CELSIUS
 
 def _clean(value):
     """Make a value JSON-safe: numpy scalars to Python, NaN/inf to None."""
@@ -78,6 +85,122 @@ def write_text(text: str, path: str | os.PathLike | None) -> None:
     except BaseException:
         Path(temporary).unlink(missing_ok=True)
         raise
+
+
+# --------------------------------------------------------------------------------------------
+# Documents: results in boundary units
+# --------------------------------------------------------------------------------------------
+
+
+def air_document(state, breath_fraction: float = 0.0) -> dict:
+    """One scalar :class:`drift.air.AirState` as a flat dict in boundary units (``drift air``)."""
+    props = state.properties
+    return {
+        "temperature_c": float(state.temperature) - ZERO_CELSIUS,
+        "pressure_kpa": float(state.pressure) * 1e-3,
+        "relative_humidity_pct": float(state.relative_humidity) * 100.0,
+        "breath_fraction": float(breath_fraction),
+        "mole_fractions": {s: float(v) for s, v in zip(SPECIES, state.mole_fractions)},
+        "sound_speed_m_s": float(props.sound_speed),
+        "density_kg_m3": float(props.density),
+        "viscosity_pa_s": float(props.viscosity),
+        "thermal_conductivity_w_m_k": float(props.conductivity),
+        "heat_capacity_j_kg_k": float(props.cp),
+        "heat_capacity_ratio": float(props.gamma),
+        "prandtl_number": float(props.prandtl),
+        "condensed": bool(state.condensed),
+    }
+
+
+def climate_record(c) -> dict:
+    """A :class:`drift.climate.Climate` as a flat dict in boundary units."""
+    return {
+        "name": c.name,
+        "temperature_c": round(c.temperature_c, 3),
+        "relative_humidity_pct": round(c.room.relative_humidity * 100, 3),
+        "pressure_kpa": round(c.room.pressure_pa * 1e-3, 3),
+        "co2_ppm": round(c.room.co2_fraction * 1e6, 1),
+        "playing": c.player.playing,
+        "minutes_played": c.player.minutes_played,
+        "description": c.description,
+    }
+
+
+def instrument_record(instrument) -> dict:
+    """A flat summary of an instrument for listings: name, description, excitation, material,
+    length_mm, holes, notes (counts)."""
+    return {"name": instrument.name, "description": instrument.description,
+            "excitation": instrument.excitation, "material": instrument.material,
+            "length_mm": instrument.length_m * 1e3, "holes": len(instrument.holes),
+            "notes": len(instrument.notes)}
+
+
+def chart_document(chart, cautions) -> dict:
+    """A :class:`drift.chart.Chart` and its care cautions (:class:`drift.advice.Caution`) as the
+    JSON document of ``drift chart``."""
+    summary = []
+    for s in chart.summary:
+        item = {("adjust_mm" if k == "adjust_m" else k): v for k, v in dataclasses.asdict(s).items()
+                if k != "adjusted_drift_cents"}
+        item["adjust_mm"] = None if s.adjust_m is None else s.adjust_m * 1e3
+        summary.append(item)
+    rows = [{"climate": c.climate, "topic": c.topic, "text": c.text} for c in cautions]
+    return {
+        "instrument": chart.instrument,
+        "a4_hz": chart.a4_hz,
+        "reference": chart.reference,
+        "tolerance_cents": chart.tolerance_cents,
+        "climates": chart.climates,
+        "rows": [dataclasses.asdict(r) for r in chart.rows],
+        "summary": summary,
+        "cautions": rows,
+        "care_note": advice.DEFER if rows else None,
+    }
+
+
+def resonances_document(found) -> dict:
+    """A :class:`drift.pitch.Resonances` as the JSON document of ``drift resonances``; the register
+    is shown only for the named fingerings of an instrument file that lists notes."""
+    named = any(n.name for n in found.notes)
+    return {"instrument": found.instrument,
+            "fingerings": [{"note": n.name, "register": n.register if named else None,
+                            "resonances_hz": [float(f) for f in res]}
+                           for n, res in zip(found.notes, found.frequencies_hz)]}
+
+
+def warmup_document(w) -> dict:
+    """A :class:`drift.warmup.Warmup` as the JSON document of ``drift warmup``."""
+    rows, bore_rows = [], []
+    for t, state, freqs, drift in zip(w.times_s, w.states, w.frequencies_hz, w.drift_cents):
+        minute = round(float(t) / 60.0, 6)
+        for note, f, d in zip(w.notes, freqs, drift):
+            rows.append({"minute": minute, "state": state.phase, "note": note, "frequency_hz": float(f),
+                         "drift_cents": float(d)})
+        p = state.profile
+        for x, ta, tw, phi in zip(p.positions_m, p.temperature_k, p.wall_temperature_k, p.breath_fraction):
+            bore_rows.append({"minute": minute, "position_mm": round(float(x) * 1e3, 3),
+                              "air_temperature_c": float(ta) - ZERO_CELSIUS,
+                              "wall_temperature_c": float(tw) - ZERO_CELSIUS,
+                              "breath_fraction": float(phi)})
+    return {
+        "instrument": w.instrument,
+        "climate": w.climate,
+        "reference": w.reference,
+        "plan": [{"state": p.state, "minutes": p.duration_s / 60.0} for p in w.plan],
+        "tolerance_cents": w.tolerance_cents,
+        "rows": rows,
+        "bore": bore_rows,
+        "steady": [{"note": n, "frequency_hz": float(f), "drift_cents": float(d)}
+                   for n, f, d in zip(w.notes, w.steady_hz, w.steady_drift_cents)],
+        "settle": [{"phase": i + 1, "start_minute": s / 60.0,
+                    "settled_minute": None if t is None else t / 60.0,
+                    "minutes_to_settle": None if t is None else (t - s) / 60.0}
+                   for i, s, t in w.settle],
+        "key_notes": [w.notes[i] for i in w.key_notes()],
+        "settle_from_cold_minutes": (None if w.settle_from_cold_s is None
+                                     else w.settle_from_cold_s / 60.0),
+        "inlet_position_mm": round(w.inlet_position_m * 1e3, 3),
+    }
 
 
 # --------------------------------------------------------------------------------------------

@@ -15,9 +15,9 @@ import sys
 import time
 from pathlib import Path
 
-import numpy as np
-
-from drift import bore, layout, pitch
+from drift import layout, pitch, thermal
+from drift.instrument import parse_instrument, to_toml
+from drift.scale import cents, equal_temperament_hz
 
 OUT = Path(__file__).resolve().parent.parent / "drift" / "data" / "instruments"
 
@@ -116,19 +116,19 @@ DEFINITIONS = {"cylindrical-reed": cylindrical_reed, "conical-reed": conical_ree
 
 def build(name: str, verbose: bool = True) -> layout.LayoutResult:
     data, plan = DEFINITIONS[name]()
-    ins = bore.parse_instrument(data, f"<{name}>")
-    profile = pitch.design_profile(ins)
+    ins = parse_instrument(data, f"<{name}>")
+    profile = thermal.design_profile(ins)
     tone = plan["tone"]
     t0 = time.perf_counter()
     # bore length for the lowest note (all holes closed), then the tone holes from the bottom up
     from scipy.optimize import brentq
 
     lowest = ins.notes[0]
-    target = pitch.equal_temperament_hz(lowest.name, ins.design.a4_hz)
+    target = equal_temperament_hz(lowest.name, ins.design.a4_hz)
 
     def low_miss(delta):
         trial = ins.with_length_change(plan["length_at_m"], delta)
-        return pitch.cents(pitch.note_frequencies(trial, profile, notes=[lowest])[0].frequency_hz, target)
+        return cents(pitch.note_frequencies(trial, profile, notes=[lowest])[0].frequency_hz, target)
 
     delta = brentq(low_miss, *plan.get("length_range", (-0.045, 0.06)), xtol=1e-6)
     ins = ins.with_length_change(plan["length_at_m"], delta)
@@ -140,7 +140,7 @@ def build(name: str, verbose: bool = True) -> layout.LayoutResult:
     # A played design: the bore's thermal state depends on where the breath leaves it, which
     # moved with the holes; tune the holes once more in the state of the tuned layout.
     if ins.design.playing:
-        profile = pitch.design_profile(result.instrument)
+        profile = thermal.design_profile(result.instrument)
         result = layout.tune_layout(result.instrument, profile, diameter_bounds_m=plan["diameter_bounds"],
                                     verbose=0)
     if verbose:
@@ -154,7 +154,7 @@ def build(name: str, verbose: bool = True) -> layout.LayoutResult:
 def main(names):
     for name in names or list(DEFINITIONS):
         result = build(name)
-        text = bore.to_toml(result.instrument, HEADER.format(worst=result.worst_cents))
+        text = to_toml(result.instrument, HEADER.format(worst=result.worst_cents))
         (OUT / f"{name}.toml").write_text(text, encoding="utf-8")
 
 

@@ -1,30 +1,29 @@
-"""Bore geometry of a wind instrument: instrument files, side holes, fingerings, discretisation.
+"""Wind instruments as the maker draws them: bore, side holes, fingerings, input end, tuning joint
+and design condition, and the instrument files that describe them.
 
 An instrument file (TOML, documented key by key in docs/formats.md) gives the bore as stations
 (position from the input end, inner diameter) joined by straight-sided (conical) pieces, the side
 holes, the fingerings, the input end (reed, lip mouthpiece or jet embouchure), a tuning joint
 and the condition the maker tuned it at. Everything here is SI: lengths in m, volumes in m^3,
 temperatures in K. File keys carry their units (``_mm``, ``_mm3``, ``_c``, ``_pct``, ``_kpa``).
-
-:func:`Instrument.segments` cuts the bore into short segments (split at every station and hole)
-for the transfer-matrix model of :mod:`drift.acoustics`; :meth:`Segments.expanded` applies thermal
-expansion of the wall from the reference temperature the dimensions are given at.
 """
 
 from __future__ import annotations
 
 import dataclasses
 import difflib
-import math
 from dataclasses import dataclass, field
 from importlib import resources
 from pathlib import Path
 
 import numpy as np
 
-from drift.constants import DEFAULT_CO2_FRACTION, STANDARD_PRESSURE, ZERO_CELSIUS
+from drift.climate import Room
+from drift.constants import A4_HZ, DEFAULT_CO2_FRACTION, STANDARD_PRESSURE, ZERO_CELSIUS
 from drift.errors import DriftError, InputFileError, OutOfRangeError
-from drift.files import Table, read_toml
+from drift.files import Table, bundled_files, load_named
+from drift.materials import DEFAULT_MATERIALS, Material, material
+from drift.scale import note_to_midi
 
 EXCITATIONS = ("reed", "lips", "jet")
 
@@ -67,8 +66,6 @@ DEFAULT_MIN_CHANGE = -2.0e-3
 DEFAULT_MAX_CHANGE = 6.0e-3
 #: The bundled instrument commands use when none is named.
 DEFAULT_INSTRUMENT = "cylindrical-reed"
-#: Longest segment of the discretised bore [m]: short enough to follow a temperature profile.
-DEFAULT_MAX_SEGMENT = 0.02
 
 
 # --------------------------------------------------------------------------------------------
@@ -131,13 +128,11 @@ class Design:
     pressure_pa: float = STANDARD_PRESSURE
     co2_fraction: float = DEFAULT_CO2_FRACTION
     playing: bool = False
-    a4_hz: float = 440.0
+    a4_hz: float = A4_HZ
 
     def room(self):
-        """The design room air as :class:`drift.air.Room`."""
-        from drift import air
-
-        return air.Room(self.temperature_k, self.pressure_pa, self.relative_humidity, self.co2_fraction)
+        """The design room air as :class:`drift.climate.Room`."""
+        return Room(self.temperature_k, self.pressure_pa, self.relative_humidity, self.co2_fraction)
 
 
 @dataclass(frozen=True)
@@ -216,10 +211,14 @@ class Instrument:
         if self.wall_m is not None:
             return self.wall_m
         if self.material is not None:
-            from drift import thermal
-
-            return thermal.material(self.material).wall_thickness
+            return material(self.material).wall_thickness
         return DEFAULT_WALL
+
+    @property
+    def wall_material(self) -> Material:
+        """The wall material: the file's ``material``, else the default of its excitation
+        (:data:`drift.materials.DEFAULT_MATERIALS`)."""
+        return material(self.material or DEFAULT_MATERIALS[self.excitation])
 
     def fingerings(self) -> tuple[Note, ...]:
         """The notes of the file; with none, one unnamed fingering with every hole open."""
@@ -299,191 +298,11 @@ class Instrument:
         stations = _dedupe(np.array(new, dtype=float))
         return dataclasses.replace(self, stations_m=stations, holes=tuple(holes), tuning=tuning)
 
-    def segments(self, max_segment_m: float = DEFAULT_MAX_SEGMENT) -> "Segments":
-        """The bore cut into segments no longer than ``max_segment_m`` [m] (see :func:`discretise`)."""
-        return discretise(self, max_segment_m)
 
 
 def _dedupe(stations: np.ndarray) -> np.ndarray:
     keep = np.concatenate([[True], np.diff(stations[:, 0]) > 1e-12])
     return stations[keep]
-
-
-# --------------------------------------------------------------------------------------------
-# Discretisation
-# --------------------------------------------------------------------------------------------
-
-
-@dataclass(frozen=True)
-class Segments:
-    """The bore as a chain of conical (or cylindrical) segments, from the input end outwards.
-
-    Attributes
-    ----------
-    start_m, length_m : ndarray (n,) [m]
-        Start position (from the input end; negative for a lip mouthpiece's throat and backbore)
-        and length of each segment.
-    radius_in_m, radius_out_m : ndarray (n,) [m]
-        Radius at the segment's start and end.
-    n_cavity : int
-        For jet excitation, the first ``n_cavity`` segments form the closed cavity between the
-        stopped end (position 0) and the embouchure; the input point is the start of segment
-        ``n_cavity``. 0 otherwise.
-    hole_segment : ndarray (h,) of int
-        Each hole sits at the start of this segment.
-    hole_radius_m, hole_chimney_m, hole_bore_radius_m : ndarray (h,) [m]
-        Hole radius, chimney height and main-bore radius at the hole.
-    hole_position_m : ndarray (h,) [m]
-    excitation : str
-    added_volume_m3 : float
-        Compliance volume in parallel at the input [m^3] (reed volume or lip cup).
-    embouchure_radius_m, embouchure_chimney_m : float [m]
-    embouchure_outer_correction_m : float or None [m]
-    """
-
-    start_m: np.ndarray
-    length_m: np.ndarray
-    radius_in_m: np.ndarray
-    radius_out_m: np.ndarray
-    n_cavity: int
-    hole_segment: np.ndarray
-    hole_radius_m: np.ndarray
-    hole_chimney_m: np.ndarray
-    hole_bore_radius_m: np.ndarray
-    hole_position_m: np.ndarray
-    excitation: str
-    added_volume_m3: float = 0.0
-    embouchure_radius_m: float = 0.0
-    embouchure_chimney_m: float = 0.0
-    embouchure_outer_correction_m: float | None = None
-
-    @property
-    def midpoints_m(self) -> np.ndarray:
-        """Segment midpoints [m]."""
-        return self.start_m + 0.5 * self.length_m
-
-    @property
-    def n(self) -> int:
-        return len(self.length_m)
-
-    def expanded(self, segment_axial, segment_radial, hole_axial, hole_radial) -> "Segments":
-        """The segments with every dimension scaled by thermal expansion factors.
-
-        Each segment's length scales by ``segment_axial`` (n,) and its radii by
-        ``segment_radial`` (n,); positions follow as cumulative sums from the first start. Each
-        hole's radius and chimney scale by ``hole_radial`` (h,) (``hole_axial`` is accepted for
-        symmetry; a hole's position follows its segment). Factors are 1 + alpha (T - T_ref),
-        see :func:`expansion_factors`.
-        """
-        ax = np.asarray(segment_axial, dtype=float)
-        rad = np.asarray(segment_radial, dtype=float)
-        length = self.length_m * ax
-        start = self.start_m[0] * ax[0] + np.concatenate([[0.0], np.cumsum(length)[:-1]])
-        hr = np.asarray(hole_radial, dtype=float)
-        del hole_axial
-        seg = self.hole_segment
-        return dataclasses.replace(
-            self,
-            start_m=start,
-            length_m=length,
-            radius_in_m=self.radius_in_m * rad,
-            radius_out_m=self.radius_out_m * rad,
-            hole_radius_m=self.hole_radius_m * hr,
-            hole_chimney_m=self.hole_chimney_m * hr,
-            hole_bore_radius_m=self.hole_bore_radius_m * (rad[seg] if len(seg) else 1.0),
-            hole_position_m=start[seg] if len(seg) else self.hole_position_m,
-            added_volume_m3=self.added_volume_m3 * float(rad[self.n_cavity]) ** 3,
-            embouchure_radius_m=self.embouchure_radius_m * float(rad[self.n_cavity]),
-            embouchure_chimney_m=self.embouchure_chimney_m * float(rad[self.n_cavity]),
-        )
-
-
-def expansion_factors(wall_temperature_k, expansion_per_k: float,
-                      reference_temperature_k: float = DEFAULT_REFERENCE_TEMPERATURE):
-    """Linear thermal expansion factors 1 + alpha (T_wall - T_ref) [-].
-
-    Parameters
-    ----------
-    wall_temperature_k : array_like
-        Wall temperature [K], for example one value per segment.
-    expansion_per_k : float
-        Linear expansion coefficient of the wall material [1/K].
-    reference_temperature_k : float
-        Temperature the dimensions are given at [K].
-
-    Notes
-    -----
-    The linear (first-order) law L(T) = L_ref (1 + alpha (T - T_ref)), valid for |alpha dT| << 1
-    (any physics text, e.g. Incropera et al. 2007, Sec. 1; common practice).
-    """
-    return 1.0 + expansion_per_k * (np.asarray(wall_temperature_k, dtype=float) - reference_temperature_k)
-
-
-def discretise(instrument: Instrument, max_segment_m: float = DEFAULT_MAX_SEGMENT) -> Segments:
-    """Cut the bore into segments, split at every station, hole and the embouchure.
-
-    Between stations the bore is a cone (radius linear in position); each piece between two
-    split points is cut into equal segments no longer than ``max_segment_m`` [m], so a
-    temperature or composition profile along the bore can be followed segment by segment. For
-    lips, a throat cylinder and a backbore cone are put before position 0.
-    """
-    if not max_segment_m > 0:
-        raise ValueError("max_segment_m must be positive")
-    st = instrument.stations_m
-    x, r = st[:, 0], st[:, 1] / 2.0
-    cuts = set(float(v) for v in x)
-    cuts.update(h.position_m for h in instrument.holes)
-    inp = instrument.input_end
-    if instrument.excitation == "jet":
-        cuts.add(inp.embouchure_position_m)
-    edges = np.array(sorted(cuts))
-    points = [edges[0]]
-    for a, b in zip(edges[:-1], edges[1:]):
-        n = max(1, math.ceil((b - a) / max_segment_m - 1e-9))
-        points.extend(np.linspace(a, b, n + 1)[1:])
-    points = np.asarray(points)
-    radius = np.interp(points, x, r)
-    start, length = points[:-1], np.diff(points)
-    r_in, r_out = radius[:-1], radius[1:]
-    if instrument.excitation == "lips":
-        r0 = r[0]
-        rt = inp.throat_diameter_m / 2.0
-        lt, lb = inp.throat_length_m, inp.backbore_length_m
-        pre_start, pre_len, pre_in, pre_out = [], [], [], []
-        if lt > 0:
-            pre_start.append(-(lt + lb)); pre_len.append(lt); pre_in.append(rt); pre_out.append(rt)
-        if lb > 0:
-            nb = max(1, math.ceil(lb / max_segment_m - 1e-9))
-            xb = np.linspace(-lb, 0.0, nb + 1)
-            rb = rt + (r0 - rt) * (xb + lb) / lb
-            pre_start.extend(xb[:-1]); pre_len.extend(np.diff(xb)); pre_in.extend(rb[:-1]); pre_out.extend(rb[1:])
-        start = np.concatenate([pre_start, start])
-        length = np.concatenate([pre_len, length])
-        r_in = np.concatenate([pre_in, r_in])
-        r_out = np.concatenate([pre_out, r_out])
-    n_cavity = 0
-    if instrument.excitation == "jet":
-        n_cavity = int(np.searchsorted(start, inp.embouchure_position_m - 1e-12))
-    hole_segment = np.array([int(np.argmin(np.abs(start - h.position_m))) for h in instrument.holes],
-                            dtype=int)
-    holes = instrument.holes
-    return Segments(
-        start_m=np.asarray(start, dtype=float),
-        length_m=np.asarray(length, dtype=float),
-        radius_in_m=np.asarray(r_in, dtype=float),
-        radius_out_m=np.asarray(r_out, dtype=float),
-        n_cavity=n_cavity,
-        hole_segment=hole_segment,
-        hole_radius_m=np.array([h.diameter_m / 2 for h in holes], dtype=float),
-        hole_chimney_m=np.array([h.chimney_m for h in holes], dtype=float),
-        hole_bore_radius_m=np.asarray(r_in, dtype=float)[hole_segment] if len(holes) else np.zeros(0),
-        hole_position_m=np.array([h.position_m for h in holes], dtype=float),
-        excitation=instrument.excitation,
-        added_volume_m3=inp.added_volume_m3,
-        embouchure_radius_m=inp.embouchure_diameter_m / 2,
-        embouchure_chimney_m=inp.embouchure_chimney_m,
-        embouchure_outer_correction_m=inp.embouchure_outer_correction_m,
-    )
 
 
 # --------------------------------------------------------------------------------------------
@@ -497,21 +316,17 @@ def parse_instrument(data: dict, path: str | Path = "<instrument>") -> Instrumen
     Every problem raises :class:`InputFileError` naming the file, the key and what is allowed;
     see docs/formats.md for the keys and their defaults.
     """
-    from drift import pitch
-
     top = Table(data, path, "", TOP_KEYS)
     name = top.string("name", required=True)
     excitation = top.string("excitation", required=True, choices=EXCITATIONS)
     description = top.string("description", default="") if top.has("description") else ""
-    material = None
+    material_name = None
     if top.has("material"):
-        material = top.string("material")
-        from drift import thermal
-
+        material_name = top.string("material")
         try:
-            thermal.material(material)
+            material(material_name)
         except InputFileError as error:
-            top.fail("material", f"= '{material}': {error}")
+            top.fail("material", f"= '{material_name}': {error}")
     t_ref = top.number("reference_temperature_c", 20.0, low=-30.0, high=60.0, unit="°C") + ZERO_CELSIUS
     wall = top.number("wall_mm", None, low=0.1, high=50.0, unit="mm")
     wall_m = None if wall is None else wall * 1e-3
@@ -523,10 +338,8 @@ def parse_instrument(data: dict, path: str | Path = "<instrument>") -> Instrumen
     default_chimney = wall_m
     if default_chimney is None:
         default_chimney = DEFAULT_WALL
-        if material is not None:
-            from drift import thermal
-
-            default_chimney = thermal.material(material).wall_thickness
+        if material_name is not None:
+            default_chimney = material(material_name).wall_thickness
     holes = []
     length = stations[-1, 0]
     for t in top.tables("hole", HOLE_KEYS):
@@ -547,7 +360,7 @@ def parse_instrument(data: dict, path: str | Path = "<instrument>") -> Instrumen
     for t in top.tables("note", NOTE_KEYS):
         nname = t.string("name", required=True)
         try:
-            pitch.note_to_midi(nname)
+            note_to_midi(nname)
         except ValueError as error:
             t.fail("name", f"= '{nname}': {error}")
         closed = t.data.get("closed", [])
@@ -570,7 +383,7 @@ def parse_instrument(data: dict, path: str | Path = "<instrument>") -> Instrumen
         pressure_pa=d.number("pressure_kpa", STANDARD_PRESSURE / 1e3, low=50.0, high=110.0, unit="kPa") * 1e3,
         co2_fraction=d.number("co2_ppm", DEFAULT_CO2_FRACTION * 1e6, low=0.0, high=100000.0, unit="ppm") * 1e-6,
         playing=d.boolean("playing", False),
-        a4_hz=d.number("a4_hz", 440.0, low=380.0, high=480.0, unit="Hz"),
+        a4_hz=d.number("a4_hz", A4_HZ, low=380.0, high=480.0, unit="Hz"),
     )
 
     tuning = None
@@ -587,7 +400,7 @@ def parse_instrument(data: dict, path: str | Path = "<instrument>") -> Instrumen
 
     return Instrument(
         name=name, excitation=excitation, stations_m=stations, holes=tuple(holes), notes=tuple(notes),
-        input_end=inp, design=design, tuning=tuning, material=material, reference_temperature_k=t_ref,
+        input_end=inp, design=design, tuning=tuning, material=material_name, reference_temperature_k=t_ref,
         wall_m=wall_m, description=description, source=str(path),
     )
 
@@ -639,41 +452,50 @@ def _input_end(top: Table, excitation: str, stations: np.ndarray) -> InputEnd:
                     embouchure_outer_correction_m=None if outer is None else outer * 1e-3)
 
 
+def _bundled_dir():
+    return resources.files("drift.data.instruments")
+
+
 def load_instrument(source: str | Path) -> Instrument:
     """An instrument by bundled name (see :func:`bundled_instruments`) or by path to a TOML file.
 
-    A value naming an existing file, or ending in ``.toml``, is read as a path; anything else is
-    looked up among the bundled instruments. Raises :class:`InputFileError` for unknown names
-    (listing the bundled ones) and for any bad key or value.
+    Parameters
+    ----------
+    source : str or path
+        A bundled name, or the path of an instrument file (docs/formats.md). A value naming an
+        existing file, ending in ``.toml`` or holding a ``/`` is read as a path.
+
+    Returns
+    -------
+    Instrument
+        Dimensions in SI units, as drawn at ``reference_temperature_k``.
+
+    Raises
+    ------
+    drift.errors.InputFileError
+        For unknown names (with a did-you-mean suggestion and the bundled names) and for any
+        bad key or value, naming the file and the key.
+
+    Examples
+    --------
+    >>> from drift import load_instrument
+    >>> load_instrument("cylindrical-reed").excitation
+    'reed'
     """
-    text = str(source)
-    path = Path(text)
-    if path.is_file() or text.endswith(".toml") or "/" in text:
-        return parse_instrument(read_toml(path, "instrument file"), path)
-    files = _bundled_files()
-    if text not in files:
-        import difflib
-
-        close = difflib.get_close_matches(text, list(files), n=1)
-        hint = f"; did you mean '{close[0]}'?" if close else ""
-        raise InputFileError(
-            f"unknown instrument '{text}'{hint} Bundled: {', '.join(sorted(files))}; or give a path to a .toml file"
-        )
-    resource = files[text]
-    import tomllib
-
-    data = tomllib.loads(resource.read_text(encoding="utf-8"))
-    return parse_instrument(data, f"drift/data/instruments/{resource.name}")
+    data, label = load_named(source, _bundled_dir(), "drift/data/instruments", "instrument")
+    return parse_instrument(data, label)
 
 
-def _bundled_files() -> dict:
-    folder = resources.files("drift.data.instruments")
-    return {entry.name[:-5]: entry for entry in folder.iterdir() if entry.name.endswith(".toml")}
+def bundled_instruments() -> list[Instrument]:
+    """Every bundled instrument (invented demonstration instruments), sorted by name.
 
-
-def bundled_instruments() -> list[tuple[str, str]]:
-    """(name, one-line description) of every bundled instrument, sorted by name."""
-    return [(name, load_instrument(name).description) for name in sorted(_bundled_files())]
+    Examples
+    --------
+    >>> from drift import bundled_instruments
+    >>> [i.name for i in bundled_instruments()]
+    ['conical-reed', 'cylindrical-reed', 'side-blown-flute']
+    """
+    return [load_instrument(name) for name in sorted(bundled_files(_bundled_dir()))]
 
 
 def _fmt(value: float, digits: int = 3) -> str:
@@ -742,12 +564,3 @@ def to_toml(instrument: Instrument, header: str = "") -> str:
 
 def _quote(text: str) -> str:
     return '"' + str(text).replace("\\", "\\\\").replace('"', '\\"') + '"'
-
-
-def instrument_record(instrument: Instrument) -> dict:
-    """A flat summary of an instrument for listings: name, description, excitation, material,
-    length_mm, holes, notes (counts)."""
-    return {"name": instrument.name, "description": instrument.description,
-            "excitation": instrument.excitation, "material": instrument.material,
-            "length_mm": instrument.length_m * 1e3, "holes": len(instrument.holes),
-            "notes": len(instrument.notes)}

@@ -1,0 +1,54 @@
+"""Note names, twelve-tone equal temperament and intervals in cents.
+
+Notes are named in scientific pitch notation (C4 is middle C, A4 the tuning note); equal
+temperament divides the octave into twelve equal semitones of 100 cents from A4 (ISO 16:1975:
+A4 = 440 Hz unless another reference is given).
+
+References
+----------
+ISO 16:1975. Acoustics - Standard tuning frequency (standard musical pitch): A4 = 440 Hz.
+"""
+
+from __future__ import annotations
+
+import re
+
+import numpy as np
+
+from drift.constants import A4_HZ
+
+_NOTE = re.compile(r"^([A-Ga-g])([#b♯♭]{0,2})(-?\d+)$")
+_STEPS = {"C": 0, "D": 2, "E": 4, "F": 5, "G": 7, "A": 9, "B": 11}
+
+
+def note_to_midi(name: str) -> int:
+    """MIDI number of a note in scientific pitch notation ("A4" -> 69, "Bb3" -> 58, "C#5" -> 73).
+
+    Letters A-G, then up to two accidentals (# or b, also ♯ ♭), then the octave number (C4 is
+    middle C). Raises ValueError for anything else.
+    """
+    m = _NOTE.match(str(name).strip())
+    if not m:
+        raise ValueError("not a note name; use scientific pitch notation such as C4, F#3 or Bb5")
+    letter, acc, octave = m.groups()
+    shift = sum(1 if ch in "#♯" else -1 for ch in acc)
+    return 12 * (int(octave) + 1) + _STEPS[letter.upper()] + shift
+
+
+def equal_temperament_hz(name_or_midi, a4_hz: float = A4_HZ):
+    """Frequency [Hz] of a note in twelve-tone equal temperament: a4 * 2^((m - 69)/12).
+
+    Parameters
+    ----------
+    name_or_midi : str or array_like of int
+        A note name, or MIDI numbers.
+    a4_hz : float
+        Pitch of A4 [Hz] (default 440, ISO 16).
+    """
+    m = note_to_midi(name_or_midi) if isinstance(name_or_midi, str) else name_or_midi
+    return a4_hz * 2.0 ** ((np.asarray(m, dtype=float) - 69.0) / 12.0)
+
+
+def cents(frequency_hz, reference_hz):
+    """Interval [cent] from ``reference_hz`` to ``frequency_hz``: 1200 log2(f / f_ref)."""
+    return 1200.0 * np.log2(np.asarray(frequency_hz, dtype=float) / np.asarray(reference_hz, dtype=float))

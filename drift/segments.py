@@ -1,0 +1,390 @@
+"""An instrument cut into segments: short cones for the acoustics, wall shells for the heat balance.
+
+:func:`discretise` cuts the bore into acoustic segments (split at every station and hole) for the
+transfer-matrix model of :mod:`drift.acoustics`; :meth:`Segments.expanded` and
+:func:`expanded_segments` apply the thermal expansion of the wall from the temperature the
+dimensions are given at. :func:`instrument_wall` cuts the same bore into the wall segments of
+the heat balance (:mod:`drift.thermal`), with the share of the breath flow that passes each.
+SI units throughout.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import math
+from dataclasses import dataclass
+
+import numpy as np
+
+from drift.constants import SEGMENT_LENGTH_M
+from drift.errors import OutOfRangeError
+from drift.instrument import DEFAULT_REFERENCE_TEMPERATURE, Instrument
+from drift.materials import Material
+
+
+# --------------------------------------------------------------------------------------------
+# Acoustic segments
+# --------------------------------------------------------------------------------------------
+
+
+@dataclass(frozen=True)
+class Segments:
+    """The bore as a chain of conical (or cylindrical) segments, from the input end outwards.
+
+    Attributes
+    ----------
+    start_m, length_m : ndarray (n,) [m]
+        Start position (from the input end; negative for a lip mouthpiece's throat and backbore)
+        and length of each segment.
+    radius_in_m, radius_out_m : ndarray (n,) [m]
+        Radius at the segment's start and end.
+    n_cavity : int
+        For jet excitation, the first ``n_cavity`` segments form the closed cavity between the
+        stopped end (position 0) and the embouchure; the input point is the start of segment
+        ``n_cavity``. 0 otherwise.
+    hole_segment : ndarray (h,) of int
+        Each hole sits at the start of this segment.
+    hole_radius_m, hole_chimney_m, hole_bore_radius_m : ndarray (h,) [m]
+        Hole radius, chimney height and main-bore radius at the hole.
+    hole_position_m : ndarray (h,) [m]
+    excitation : str
+    added_volume_m3 : float
+        Compliance volume in parallel at the input [m^3] (reed volume or lip cup).
+    embouchure_radius_m, embouchure_chimney_m : float [m]
+    embouchure_outer_correction_m : float or None [m]
+    """
+
+    start_m: np.ndarray
+    length_m: np.ndarray
+    radius_in_m: np.ndarray
+    radius_out_m: np.ndarray
+    n_cavity: int
+    hole_segment: np.ndarray
+    hole_radius_m: np.ndarray
+    hole_chimney_m: np.ndarray
+    hole_bore_radius_m: np.ndarray
+    hole_position_m: np.ndarray
+    excitation: str
+    added_volume_m3: float = 0.0
+    embouchure_radius_m: float = 0.0
+    embouchure_chimney_m: float = 0.0
+    embouchure_outer_correction_m: float | None = None
+
+    @property
+    def midpoints_m(self) -> np.ndarray:
+        """Segment midpoints [m]."""
+        return self.start_m + 0.5 * self.length_m
+
+    @property
+    def n(self) -> int:
+        return len(self.length_m)
+
+    def expanded(self, segment_axial, segment_radial, hole_radial) -> "Segments":
+        """The segments with every dimension scaled by thermal expansion factors.
+
+        Each segment's length scales by ``segment_axial`` (n,) and its radii by
+        ``segment_radial`` (n,); positions follow as cumulative sums from the first start. Each
+        hole's radius and chimney scale by ``hole_radial`` (h,) (a hole's position follows its
+        segment). Factors are 1 + alpha (T - T_ref),
+        see :func:`expansion_factors`.
+        """
+        ax = np.asarray(segment_axial, dtype=float)
+        rad = np.asarray(segment_radial, dtype=float)
+        length = self.length_m * ax
+        start = self.start_m[0] * ax[0] + np.concatenate([[0.0], np.cumsum(length)[:-1]])
+        hr = np.asarray(hole_radial, dtype=float)
+        seg = self.hole_segment
+        return dataclasses.replace(
+            self,
+            start_m=start,
+            length_m=length,
+            radius_in_m=self.radius_in_m * rad,
+            radius_out_m=self.radius_out_m * rad,
+            hole_radius_m=self.hole_radius_m * hr,
+            hole_chimney_m=self.hole_chimney_m * hr,
+            hole_bore_radius_m=self.hole_bore_radius_m * (rad[seg] if len(seg) else 1.0),
+            hole_position_m=start[seg] if len(seg) else self.hole_position_m,
+            added_volume_m3=self.added_volume_m3 * float(rad[self.n_cavity]) ** 3,
+            embouchure_radius_m=self.embouchure_radius_m * float(rad[self.n_cavity]),
+            embouchure_chimney_m=self.embouchure_chimney_m * float(rad[self.n_cavity]),
+        )
+
+
+def expansion_factors(wall_temperature_k, expansion_per_k: float,
+                      reference_temperature_k: float = DEFAULT_REFERENCE_TEMPERATURE):
+    """Linear thermal expansion factors 1 + alpha (T_wall - T_ref) [-].
+
+    Parameters
+    ----------
+    wall_temperature_k : array_like
+        Wall temperature [K], for example one value per segment.
+    expansion_per_k : float
+        Linear expansion coefficient of the wall material [1/K].
+    reference_temperature_k : float
+        Temperature the dimensions are given at [K].
+
+    Notes
+    -----
+    The linear (first-order) law L(T) = L_ref (1 + alpha (T - T_ref)), valid for |alpha dT| << 1
+    (any physics text, e.g. Incropera et al. 2007, Sec. 1; common practice).
+    """
+    return 1.0 + expansion_per_k * (np.asarray(wall_temperature_k, dtype=float) - reference_temperature_k)
+
+
+def discretise(instrument: Instrument, max_segment_m: float = SEGMENT_LENGTH_M) -> Segments:
+    """Cut the bore into segments, split at every station, hole and the embouchure.
+
+    Between stations the bore is a cone (radius linear in position); each piece between two
+    split points is cut into equal segments no longer than ``max_segment_m`` [m], so a
+    temperature or composition profile along the bore can be followed segment by segment. For
+    lips, a throat cylinder and a backbore cone are put before position 0.
+    """
+    if not max_segment_m > 0:
+        raise ValueError("max_segment_m must be positive")
+    st = instrument.stations_m
+    x, r = st[:, 0], st[:, 1] / 2.0
+    cuts = set(float(v) for v in x)
+    cuts.update(h.position_m for h in instrument.holes)
+    inp = instrument.input_end
+    if instrument.excitation == "jet":
+        cuts.add(inp.embouchure_position_m)
+    edges = np.array(sorted(cuts))
+    points = [edges[0]]
+    for a, b in zip(edges[:-1], edges[1:]):
+        n = max(1, math.ceil((b - a) / max_segment_m - 1e-9))
+        points.extend(np.linspace(a, b, n + 1)[1:])
+    points = np.asarray(points)
+    radius = np.interp(points, x, r)
+    start, length = points[:-1], np.diff(points)
+    r_in, r_out = radius[:-1], radius[1:]
+    if instrument.excitation == "lips":
+        r0 = r[0]
+        rt = inp.throat_diameter_m / 2.0
+        lt, lb = inp.throat_length_m, inp.backbore_length_m
+        pre_start, pre_len, pre_in, pre_out = [], [], [], []
+        if lt > 0:
+            pre_start.append(-(lt + lb)); pre_len.append(lt); pre_in.append(rt); pre_out.append(rt)
+        if lb > 0:
+            nb = max(1, math.ceil(lb / max_segment_m - 1e-9))
+            xb = np.linspace(-lb, 0.0, nb + 1)
+            rb = rt + (r0 - rt) * (xb + lb) / lb
+            pre_start.extend(xb[:-1]); pre_len.extend(np.diff(xb)); pre_in.extend(rb[:-1]); pre_out.extend(rb[1:])
+        start = np.concatenate([pre_start, start])
+        length = np.concatenate([pre_len, length])
+        r_in = np.concatenate([pre_in, r_in])
+        r_out = np.concatenate([pre_out, r_out])
+    n_cavity = 0
+    if instrument.excitation == "jet":
+        n_cavity = int(np.searchsorted(start, inp.embouchure_position_m - 1e-12))
+    hole_segment = np.array([int(np.argmin(np.abs(start - h.position_m))) for h in instrument.holes],
+                            dtype=int)
+    holes = instrument.holes
+    return Segments(
+        start_m=np.asarray(start, dtype=float),
+        length_m=np.asarray(length, dtype=float),
+        radius_in_m=np.asarray(r_in, dtype=float),
+        radius_out_m=np.asarray(r_out, dtype=float),
+        n_cavity=n_cavity,
+        hole_segment=hole_segment,
+        hole_radius_m=np.array([h.diameter_m / 2 for h in holes], dtype=float),
+        hole_chimney_m=np.array([h.chimney_m for h in holes], dtype=float),
+        hole_bore_radius_m=np.asarray(r_in, dtype=float)[hole_segment] if len(holes) else np.zeros(0),
+        hole_position_m=np.array([h.position_m for h in holes], dtype=float),
+        excitation=instrument.excitation,
+        added_volume_m3=inp.added_volume_m3,
+        embouchure_radius_m=inp.embouchure_diameter_m / 2,
+        embouchure_chimney_m=inp.embouchure_chimney_m,
+        embouchure_outer_correction_m=inp.embouchure_outer_correction_m,
+    )
+
+
+def expanded_segments(instrument: Instrument, wall_temperature_at,
+                      max_segment_m: float = SEGMENT_LENGTH_M) -> Segments:
+    """The acoustic segments of an instrument, expanded by the temperature of its wall.
+
+    Parameters
+    ----------
+    instrument : Instrument
+    wall_temperature_at : callable or None
+        Wall temperature [K] at positions [m] (for example
+        :meth:`drift.thermal.BoreProfile.wall_temperature_at`); None: no expansion.
+    max_segment_m : float
+        Longest segment [m].
+
+    Notes
+    -----
+    Every segment's length scales with the axial coefficient of the wall material and its radii
+    with the across-grain coefficient, each at the wall temperature at its midpoint; each hole's
+    radius and chimney with the across-grain coefficient at its position
+    (:func:`expansion_factors`, from the instrument's reference temperature). Without a material
+    in the file the bore is not expanded.
+    """
+    segs = discretise(instrument, max_segment_m)
+    if wall_temperature_at is None or instrument.material is None:
+        return segs
+    m = instrument.wall_material
+    t_ref = instrument.reference_temperature_k
+    t_seg = wall_temperature_at(np.clip(segs.midpoints_m, 0.0, None))
+    t_hole = wall_temperature_at(segs.hole_position_m)
+    return segs.expanded(expansion_factors(t_seg, m.expansion_per_k, t_ref),
+                         expansion_factors(t_seg, m.expansion_across_per_k, t_ref),
+                         expansion_factors(t_hole, m.expansion_across_per_k, t_ref))
+
+
+# --------------------------------------------------------------------------------------------
+# Wall segments and the breath flow through them
+# --------------------------------------------------------------------------------------------
+
+
+@dataclass(frozen=True)
+class Wall:
+    """The bore cut into segments, each with its wall: what the thermal model works on.
+
+    Attributes
+    ----------
+    positions_m : ndarray (n,)
+        Segment centres from the input end [m], ascending.
+    lengths_m : ndarray (n,)
+        Segment lengths [m]; segment i spans positions_m[i] -/+ lengths_m[i]/2, without gaps.
+    inner_radius_m : ndarray (n,)
+        Bore radius [m].
+    thickness_m : ndarray (n,)
+        Wall thickness [m].
+    material : Material
+    flow_fraction : ndarray (n,)
+        Share [0-1] of the mean breath flow passing through each segment while playing, averaged
+        over the notes played (1 down to the first open hole of each note, 0 below it). The flow
+        enters at the first segment with a share above 0 (segments before it, such as the cavity
+        between a flute's stopped end and its embouchure, see no through-flow) and the share does
+        not grow from there on.
+    """
+
+    positions_m: np.ndarray
+    lengths_m: np.ndarray
+    inner_radius_m: np.ndarray
+    thickness_m: np.ndarray
+    material: Material
+    flow_fraction: np.ndarray
+
+    def __post_init__(self):
+        n = np.size(self.positions_m)
+        for name in ("lengths_m", "inner_radius_m", "thickness_m", "flow_fraction"):
+            value = np.asarray(getattr(self, name), dtype=float)
+            if value.shape != (n,):
+                raise OutOfRangeError(f"wall {name} must have one value per segment ({n})")
+            if not np.all(np.isfinite(value)):
+                raise OutOfRangeError(f"wall {name} must be finite")
+        if n == 0:
+            raise OutOfRangeError("a wall needs at least one segment")
+        for name in ("lengths_m", "inner_radius_m", "thickness_m"):
+            if np.any(np.asarray(getattr(self, name)) <= 0.0):
+                raise OutOfRangeError(f"wall {name.replace('_', ' ')} must be positive")
+        w = np.asarray(self.flow_fraction, dtype=float)
+        first = int(np.argmax(w > 0.0)) if np.any(w > 0.0) else n
+        if np.any(w < 0.0) or np.any(w > 1.0) or np.any(np.diff(w[first:]) > 1e-12):
+            raise OutOfRangeError(
+                "wall flow fraction must lie in [0, 1] and, from where the flow enters, not grow along the bore")
+
+    @property
+    def edges_m(self) -> np.ndarray:
+        """Segment boundaries [m], (n + 1,)."""
+        start = self.positions_m[0] - 0.5 * self.lengths_m[0]
+        return start + np.concatenate([[0.0], np.cumsum(self.lengths_m)])
+
+
+def flow_fraction_from_exits(positions_m, exits_m) -> np.ndarray:
+    """Share of the breath flow reaching each position [0-1], averaged over notes.
+
+    While a note sounds, the mean flow leaves the bore at its first open tone hole (or the open
+    end): ``exits_m`` holds that position [m] for each note. Notes are weighted equally
+    (assumption: a uniform use of the range). w(x) = (number of exits beyond x) / (number of notes).
+    """
+    x = np.asarray(positions_m, dtype=float)
+    exits = np.atleast_1d(np.asarray(exits_m, dtype=float))
+    if exits.size == 0:
+        return np.ones_like(x)
+    return np.mean(exits[None, :] > x[:, None], axis=1)
+
+
+def wall_from_stations(stations_m, thickness_m, material: Material, segment_length_m=SEGMENT_LENGTH_M,
+                       flow_fraction=None) -> Wall:
+    """Cut a bore given by stations into segments of at most ``segment_length_m`` [m].
+
+    Parameters
+    ----------
+    stations_m : array_like (k, 2)
+        [position from the input end, inner diameter] [m], positions ascending; the bore is
+        conical (linear in diameter) between stations.
+    thickness_m : float or callable
+        Wall thickness [m], or a function of position [m] returning it.
+    material : Material
+    segment_length_m : float
+        Largest segment length [m].
+    flow_fraction : None, callable or array_like
+        Share of the flow reaching each segment: None = 1 everywhere; a callable of the segment
+        centres [m]; or an array (n,) for the segments made.
+    """
+    st = np.asarray(stations_m, dtype=float)
+    if st.ndim != 2 or st.shape[1] != 2 or st.shape[0] < 2:
+        raise OutOfRangeError("bore stations must be pairs [position, diameter], at least two")
+    if np.any(np.diff(st[:, 0]) < 0.0) or st[-1, 0] <= st[0, 0]:
+        raise OutOfRangeError("bore station positions must ascend")
+    total = st[-1, 0] - st[0, 0]
+    n = max(1, int(math.ceil(total / segment_length_m - 1e-9)))
+    edges = np.linspace(st[0, 0], st[-1, 0], n + 1)
+    centres = 0.5 * (edges[:-1] + edges[1:])
+    # Mean radius of a segment: the radius of equal volume of the conical pieces, sampled finely.
+    fine = np.linspace(0.0, 1.0, 9)
+    xs = edges[:-1, None] + np.diff(edges)[:, None] * fine[None, :]
+    d = np.interp(xs, st[:, 0], st[:, 1])
+    radius = 0.5 * np.sqrt(np.trapezoid(d**2, fine, axis=1))
+    thickness = thickness_m(centres) if callable(thickness_m) else np.full(n, float(thickness_m))
+    if flow_fraction is None:
+        w = np.ones(n)
+    elif callable(flow_fraction):
+        w = np.asarray(flow_fraction(centres), dtype=float)
+    else:
+        w = np.asarray(flow_fraction, dtype=float)
+    return Wall(centres, np.diff(edges), radius, np.asarray(thickness, dtype=float), material, w)
+
+
+#: An open side hole lets the mean flow out when its diameter is at least this share of the bore
+#: diameter there (estimate: a small register, octave or vent hole has a flow resistance many times
+#: that of the bore below it, so the flow passes it by).
+EXIT_HOLE_RATIO = 0.4
+
+
+def flow_exits(instrument: Instrument) -> np.ndarray:
+    """Where the mean flow leaves the bore [m], one position per fingering of ``instrument``.
+
+    The first open side hole at least :data:`EXIT_HOLE_RATIO` of the local bore diameter wide,
+    counted from the input end (for a jet, beyond the embouchure); the open end when there is none.
+    """
+    holes = instrument.holes
+    length = instrument.length_m
+    notes = instrument.fingerings()
+    if not holes:
+        return np.full(len(notes), length)
+    pos = np.array([h.position_m for h in holes])
+    dia = np.array([h.diameter_m for h in holes])
+    big = dia >= EXIT_HOLE_RATIO * instrument.diameter_at(pos)
+    mask = instrument.open_mask(notes) & big[None, :]
+    candidates = np.where(mask, pos[None, :], np.inf)
+    first = candidates.min(axis=1)
+    return np.where(np.isfinite(first), first, length)
+
+
+def instrument_wall(instrument: Instrument, segment_length_m: float = SEGMENT_LENGTH_M) -> Wall:
+    """The :class:`Wall` of an instrument: its bore stations cut into segments, its wall thickness
+    (``instrument.wall_thickness_m``) and material (``instrument.wall_material``), and the share of
+    the flow reaching each segment averaged over its fingerings (:func:`flow_exits`,
+    :func:`flow_fraction_from_exits`). For a jet the flow enters at the embouchure; the cavity
+    between the stopped end and the embouchure sees none."""
+    exits = flow_exits(instrument)
+    inlet = instrument.input_end.embouchure_position_m if instrument.excitation == "jet" else -math.inf
+
+    def share(x):
+        return np.where(x >= inlet, flow_fraction_from_exits(x, exits), 0.0)
+
+    return wall_from_stations(instrument.stations_m, instrument.wall_thickness_m,
+                              instrument.wall_material, segment_length_m, share)
