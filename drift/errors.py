@@ -34,6 +34,5 @@ def check_range(name: str, value, scale: float = 1.0, offset: float = 0.0) -> No
     if np.any(bad):
         worst = np.atleast_1d(shown)[np.atleast_1d(bad)][0]
         label = name.replace("_", " ")
-        raise OutOfRangeError(
-            f"{label} {worst:g} {unit} is outside the allowed range {low:g} to {high:g} {unit}".strip()
-        )
+        u = f" {unit}" if unit else ""
+        raise OutOfRangeError(f"{label} {worst:g}{u} is outside the allowed range {low:g} to {high:g}{u}")

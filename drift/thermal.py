@@ -110,7 +110,7 @@ class BoreProfile:
         temperature, composition and properties are interpolated linearly to ``positions_m``. The
         properties are smooth in temperature and composition, so between samples a few
         centimetres and a kelvin or two apart this differs from a fresh evaluation by far less
-        than the model's own uncertainty (tests/test_air.py bounds it), and moving positions (a
+        than the model's own uncertainty (tests/test_thermal.py bounds it), and moving positions (a
         joint change, an expanded bore) costs no new CoolProp states.
         """
         x = np.asarray(positions_m, dtype=float)

@@ -1,20 +1,283 @@
-"""Shared test helpers."""
+"""Shared test fixtures: the small instrument files several tests write out, the command line run
+in-process, and the expensive results, computed once per session and shared.
 
-import subprocess
-import sys
+The module-level texts can be imported by tests (``from conftest import TWO_HOLE_PIPE``) where a
+test edits them.
+"""
+
+import json
 
 import pytest
+from hypothesis import settings
+
+# No example database: every run draws its examples afresh and leaves no files behind.
+settings.register_profile("drift", database=None)
+settings.load_profile("drift")
+
+#: A cylinder-and-cone reed pipe with two holes, two notes and a tuning joint.
+TWO_HOLE_PIPE = """
+name = "pipe"
+excitation = "reed"
+[bore]
+stations_mm = [[0, 15], [300, 15], [600, 20]]
+[[hole]]
+name = "h1"
+position_mm = 450.0
+diameter_mm = 8.0
+chimney_mm = 4.0
+[[hole]]
+name = "h2"
+position_mm = 400.0
+diameter_mm = 7.0
+[[note]]
+name = "D3"
+closed = ["h1", "h2"]
+[[note]]
+name = "E3"
+closed = ["h2"]
+register = 1
+[tuning]
+position_mm = 100.0
+"""
+
+#: A wooden reed pipe with a small register hole and two tone holes; four notes in two registers.
+REGISTER_PIPE = """
+name = "test pipe"
+excitation = "{excitation}"
+material = "tropical_hardwood"
+{extra}
+[bore]
+stations_mm = [[0.0, 15.0], [600.0, 15.0]]
+[[hole]]
+name = "register"
+position_mm = 150.0
+diameter_mm = 3.0
+[[hole]]
+name = "h2"
+position_mm = 400.0
+diameter_mm = 9.0
+[[hole]]
+name = "h1"
+position_mm = 450.0
+diameter_mm = 9.0
+[[note]]
+name = "D3"
+closed = ["register", "h1", "h2"]
+[[note]]
+name = "E3"
+closed = ["register", "h2"]
+[[note]]
+name = "F#3"
+closed = ["register"]
+[[note]]
+name = "A4"
+closed = ["h1", "h2"]
+register = 2
+"""
+
+#: A wooden reed pipe with two tone holes and three notes (the warm-up command's test pipe).
+WARMUP_PIPE = """
+name = "test pipe"
+excitation = "reed"
+material = "tropical_hardwood"
+[bore]
+stations_mm = [[0.0, 15.0], [600.0, 15.0]]
+[[hole]]
+name = "h2"
+position_mm = 400.0
+diameter_mm = 9.0
+[[hole]]
+name = "h1"
+position_mm = 450.0
+diameter_mm = 9.0
+[[note]]
+name = "D3"
+closed = ["h1", "h2"]
+[[note]]
+name = "E3"
+closed = ["h2"]
+[[note]]
+name = "F#3"
+closed = []
+"""
+
+#: A 600 mm cylinder of 10 mm bore, reed-driven with no added volume, no holes.
+CYLINDER = ('name = "tube"\nexcitation = "reed"\n[bore]\nstations_mm = [[0, 10], [600, 10]]\n'
+            '[input]\nadded_volume_mm3 = 0\n')
+#: A 600 mm cone from 10 to 50 mm, reed-driven with no added volume, no holes.
+CONE = ('name = "cone"\nexcitation = "reed"\n[bore]\nstations_mm = [[0, 10], [600, 50]]\n'
+        '[input]\nadded_volume_mm3 = 0\n')
+
+#: A room for climate files: 26 °C, 40 % RH, no [player] table.
+WARM_ROOM = """
+name = "warm room"
+[air]
+temperature_c = 26.0
+relative_humidity_pct = 40
+"""
+
+#: A room at the breath's temperature, saturated: the breath neither warms nor wets the bore, so a
+#: bore played there starts in its steady state.
+BREATH_WARM_ROOM = """
+name = "breath-warm room"
+[air]
+temperature_c = 35.0
+relative_humidity_pct = 100
+"""
+
+#: The bundled instruments.
+BUNDLED = ("conical-reed", "cylindrical-reed", "side-blown-flute")
+#: The plan of the shared warm-ups of the bundled instruments: a rise, then a rest.
+WARMUP_PLAN = "play:8,rest:3"
 
 
-def run_drift(*args, check_rc=None):
-    """Run the real command line in a subprocess; return the CompletedProcess."""
-    result = subprocess.run([sys.executable, "-m", "drift", *map(str, args)], capture_output=True,
-                            text=True, timeout=600)
-    if check_rc is not None:
-        assert result.returncode == check_rc, result.stderr
-    return result
+def write_file(folder, text, name):
+    """Write ``text`` to ``folder/name`` (UTF-8) and return the path."""
+    path = folder / name
+    path.write_text(text, encoding="utf-8")
+    return path
+
+
+def make_instrument(stations, holes=(), excitation="reed", **extra):
+    """An instrument parsed from a table like an instrument file's (no file written): a bore of
+    ``stations`` [[mm, mm], ...], side holes as dicts; a reed gets no added volume."""
+    from drift.instrument import parse_instrument
+
+    data = {"name": "test", "excitation": excitation, "bore": {"stations_mm": stations},
+            "input": {"added_volume_mm3": 0.0} if excitation == "reed" else extra.pop("input", {})}
+    if holes:
+        data["hole"] = list(holes)
+    data.update(extra)
+    return parse_instrument(data, "test.toml")
 
 
 @pytest.fixture
-def drift_cli():
-    return run_drift
+def write_toml(tmp_path):
+    """``write_toml(text, name="file.toml")``: the path of ``text`` written in the test's folder."""
+    def write(text, name="file.toml"):
+        return write_file(tmp_path, text, name)
+
+    return write
+
+
+@pytest.fixture
+def two_hole_pipe(tmp_path):
+    return write_file(tmp_path, TWO_HOLE_PIPE, "pipe.toml")
+
+
+@pytest.fixture
+def register_pipe(tmp_path):
+    return write_file(tmp_path, REGISTER_PIPE.format(excitation="reed", extra=""), "pipe.toml")
+
+
+@pytest.fixture
+def warmup_pipe(tmp_path):
+    return write_file(tmp_path, WARMUP_PIPE, "pipe.toml")
+
+
+# --------------------------------------------------------------------------------------------
+# The command line, in-process
+# --------------------------------------------------------------------------------------------
+
+
+def invoke(*args, code=0):
+    """Run ``drift ARGS`` in this process through click's test runner; check the exit status
+    (unless ``code`` is None) and return the result (``.stdout``, ``.stderr``, ``.exit_code``)."""
+    from click.testing import CliRunner
+
+    from drift.cli import main
+
+    result = CliRunner().invoke(main, [str(a) for a in args])
+    if code is not None:
+        assert result.exit_code == code, (result.stdout, result.stderr, result.exception)
+    return result
+
+
+def assert_refused(result, *words):
+    """Bad input (DEVELOPERS.md and the project rules): exit status 2 through ``SystemExit`` (no
+    uncaught exception, so no traceback), one to three lines on stderr holding every word, nothing
+    on stdout."""
+    assert result.exit_code == 2, (result.stdout, result.stderr, result.exception)
+    assert isinstance(result.exception, SystemExit), result.exception
+    assert result.stdout == ""
+    lines = [line for line in result.stderr.splitlines() if line.strip()]
+    assert 1 <= len(lines) <= 3, result.stderr
+    for word in words:
+        assert word in result.stderr, (word, result.stderr)
+
+
+@pytest.fixture
+def cli():
+    return invoke
+
+
+# --------------------------------------------------------------------------------------------
+# Expensive results, computed once per session
+# --------------------------------------------------------------------------------------------
+
+
+@pytest.fixture(scope="session")
+def default_chart():
+    """The JSON document of ``drift chart --format json``: the default instrument over every
+    bundled climate."""
+    return json.loads(invoke("chart", "--format", "json").stdout)
+
+
+@pytest.fixture(scope="session")
+def bundled_instruments():
+    """The bundled instruments by name."""
+    from drift.instrument import load_instrument
+
+    return {name: load_instrument(name) for name in BUNDLED}
+
+
+@pytest.fixture(scope="session")
+def design_profiles(bundled_instruments):
+    """The bore profile of each bundled instrument at its [design] condition (the steady state of
+    playing where the design is played)."""
+    from drift import thermal
+
+    return {name: thermal.design_profile(ins) for name, ins in bundled_instruments.items()}
+
+
+@pytest.fixture(scope="session")
+def design_notes(bundled_instruments, design_profiles):
+    """Name -> (instrument, note frequencies at its design condition)."""
+    from drift import pitch
+
+    return {name: (ins, pitch.note_frequencies(ins, design_profiles[name]))
+            for name, ins in bundled_instruments.items()}
+
+
+@pytest.fixture(scope="session")
+def bundled_warmups():
+    """Name -> JSON document of ``drift warmup NAME --plan play:8,rest:3 --step 60 --format json``;
+    the default instrument's is run without naming it."""
+    from drift.instrument import DEFAULT_INSTRUMENT
+
+    out = {}
+    for name in BUNDLED:
+        which = [] if name == DEFAULT_INSTRUMENT else [name]
+        out[name] = json.loads(invoke("warmup", *which, "--plan", WARMUP_PLAN, "--step", "60",
+                                      "--format", "json").stdout)
+    return out
+
+
+#: The plan of the shared warm-up of the test pipe: a rise, a rest and a second rise.
+PIPE_PLAN = "play:6,rest:3,play:3"
+
+
+@pytest.fixture(scope="session")
+def pipe_warmup(tmp_path_factory):
+    """``drift warmup PIPE --plan play:6,rest:3,play:3 --step 60 --format json --output FILE`` for
+    the test pipe of :data:`WARMUP_PIPE` in its design room (20 °C, 50 % RH): a namespace with the
+    pipe's path, the output file, the run's result and the document read from the file."""
+    from types import SimpleNamespace
+
+    folder = tmp_path_factory.mktemp("pipe_warmup")
+    pipe = write_file(folder, WARMUP_PIPE, "pipe.toml")
+    output = folder / "warmup.json"
+    result = invoke("warmup", pipe, "--plan", PIPE_PLAN, "--step", "60", "--format", "json",
+                    "--output", output)
+    return SimpleNamespace(pipe=pipe, output=output, result=result,
+                           doc=json.loads(output.read_text(encoding="utf-8")))

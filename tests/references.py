@@ -1,6 +1,9 @@
-"""Published formulas, written out independently of drift, for the tests to compare against."""
+"""Published formulas, written out independently of drift, for the tests to compare against, and
+test-only helpers that look inside drift's objects."""
 
 import math
+
+import numpy as np
 
 
 def cramer_sound_speed(t_c, p_pa, x_w, x_c):
@@ -24,3 +27,47 @@ def davis_water_fraction(t_c, p_pa, rh):
     p_sv = math.exp(1.2378847e-5 * T**2 - 1.9121316e-2 * T + 33.93711047 - 6.3431645e3 / T)
     f = 1.00062 + 3.14e-8 * p_pa + 5.6e-7 * t_c**2
     return rh * f * p_sv / p_pa
+
+
+def propagation_keefe1984(frequency_hz, radius_m, sound_speed, density, viscosity, conductivity, cp, gamma):
+    """Gamma [1/m] and Zc [Pa s/m^3] from the large-r_v approximations of Keefe (1984).
+
+    With r_v = a sqrt(omega rho / eta) and r_t = a sqrt(omega rho cp / kappa) (both >> 1):
+
+        Z = (omega rho / S) [sqrt2/r_v + 3/r_v^2 + j (1 + sqrt2/r_v)]
+        Y = (omega S / (rho c^2)) [(gamma-1)(sqrt2/r_t - 1/r_t^2) + j (1 + (gamma-1) sqrt2/r_t)]
+
+    (Keefe 1984, J. Acoust. Soc. Am. 75(1), 58-62, Eqs. 8-9, equation numbers from memory; here
+    re-derived as the two leading terms of the large-argument expansion of the Zwikker-Kosten
+    functions). An independent check of :func:`drift.acoustics.propagation_zk`; valid to about
+    1 % for r_v > 10.
+    """
+    omega = 2.0 * np.pi * np.asarray(frequency_hz, dtype=float)
+    a = np.asarray(radius_m, dtype=float)
+    rho = np.asarray(density, dtype=float)
+    c = np.asarray(sound_speed, dtype=float)
+    g = np.asarray(gamma, dtype=float)
+    s = np.pi * a**2
+    rv = a * np.sqrt(omega * rho / np.asarray(viscosity, dtype=float))
+    rt = a * np.sqrt(omega * rho * np.asarray(cp, dtype=float) / np.asarray(conductivity, dtype=float))
+    r2 = np.sqrt(2.0)
+    z = omega * rho / s * (r2 / rv + 3.0 / rv**2 + 1j * (1.0 + r2 / rv))
+    y = omega * s / (rho * c**2) * ((g - 1.0) * (r2 / rt - 1.0 / rt**2) + 1j * (1.0 + (g - 1.0) * r2 / rt))
+    return np.sqrt(z * y), np.sqrt(z / y)
+
+
+def transfer_matrices(network, frequency_hz):
+    """(A, B, C, D) of every segment of a :class:`drift.acoustics.Network` at frequencies [Hz],
+    arrays (n, N): the network's own matrices, exposed for checks."""
+    return network._matrices(np.atleast_1d(np.asarray(frequency_hz, dtype=float)))
+
+
+#: Note names of the twelve pitch classes, from C (MIDI numbering; common practice).
+PITCH_CLASSES = ("C", "C#", "D", "Eb", "E", "F", "F#", "G", "Ab", "A", "Bb", "B")
+
+
+def nearest_note(frequency_hz, a4_hz=440.0):
+    """Name of the equal-tempered note nearest a frequency [Hz]: m = round(69 + 12 log2(f / a4)),
+    octave m // 12 - 1 (MIDI 1.0 numbering, A4 = 69, C4 = 60)."""
+    m = round(69 + 12 * math.log2(frequency_hz / a4_hz))
+    return f"{PITCH_CLASSES[m % 12]}{m // 12 - 1}"

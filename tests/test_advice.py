@@ -1,12 +1,12 @@
 """Care cautions (common practice: the usual advice of makers and repairers, no published source)."""
 
-from drift import advice, air
-from drift.climate import Climate
+from drift import advice
+from drift.climate import Climate, Room
 from drift.constants import ZERO_CELSIUS
 
 
 def climate(t_c, rh_pct):
-    return Climate("c", air.Room(t_c + ZERO_CELSIUS, 101325.0, rh_pct / 100.0))
+    return Climate("c", Room(t_c + ZERO_CELSIUS, 101325.0, rh_pct / 100.0))
 
 
 def topics(material, t_c, rh_pct):
@@ -32,3 +32,11 @@ def test_heat_damp_and_dry():
     assert topics("tropical_hardwood", 22, 20) == ["dry"]
     assert topics("abs", 22, 20) == []
 
+
+
+def test_every_caution_names_its_climate_and_the_set_defers_to_the_maker():
+    cold = climate(-8, 90)
+    assert all(c.climate == "c" and c.text for c in advice.cautions("tropical_hardwood", cold))
+    assert "maker's instructions" in advice.DEFER and "local rules" in advice.DEFER
+    # an unknown or missing material gets the general cautions only
+    assert [c.topic for c in advice.cautions(None, climate(-8, 50))] == ["cold", "freezing"]

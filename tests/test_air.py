@@ -1,4 +1,5 @@
-"""Tests of drift.air against published equations, tables and an independent humid-air model."""
+"""Moist air, breath and their mixture (drift.air) against published equations, tables and an
+independent humid-air model."""
 
 import numpy as np
 import pytest
@@ -6,6 +7,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from drift import air
+from drift.climate import Breath, Room
 from drift.constants import ZERO_CELSIUS
 from drift.errors import OutOfRangeError
 from references import cramer_sound_speed, davis_water_fraction
@@ -91,13 +93,6 @@ def test_density_and_humidity_ratio_against_coolprop_humid_air_model(t_c, rh, p)
     assert float(state.properties.density) == pytest.approx(density, rel=2e-3)
 
 
-def test_iso_2533_pressures():
-    """ISO 2533:1975 (identical to the U.S. Standard Atmosphere 1976 below 11 km): 89 876 Pa at
-    1000 m and 79 501 Pa at 2000 m geometric altitude (table values, from memory)."""
-    assert air.pressure_from_altitude([1000.0, 2000.0]) == pytest.approx([89876.0, 79501.0], abs=2.0)
-    assert float(air.pressure_from_altitude(0.0)) == pytest.approx(101325.0)
-
-
 def test_sound_speed_invariants():
     """c rises with temperature and with humidity and falls with CO2 (Cramer 1993, Table III signs)."""
     def c(t_c=20.0, rh=0.5, co2=420e-6):
@@ -120,7 +115,7 @@ def test_dry_air_composition_and_co2():
 
 
 def test_breath_composition():
-    b = air.Breath(temperature_k=308.15, co2_fraction=0.05, o2_fraction=0.16)
+    b = Breath(temperature_k=308.15, co2_fraction=0.05, o2_fraction=0.16)
     x = air.breath_air(101325.0, b)
     assert x.sum() == pytest.approx(1.0)
     dry = 1.0 - x[4]
@@ -175,22 +170,6 @@ def test_out_of_range_raises_project_error(kwargs, word):
         air.air_state(**args)
 
 
-def test_altitude_range():
-    with pytest.raises(OutOfRangeError, match="altitude"):
-        air.pressure_from_altitude(9000.0)
-
-
-def test_bore_profile_interpolates_and_holds_ends():
-    room = air.Room(293.15, 101325.0, 0.5)
-    profile = air.BoreProfile(room, np.array([0.1, 0.5]), np.array([305.0, 295.0]),
-                              np.array([0.8, 0.2]), np.array([300.0, 294.0]))
-    state = profile.air_at([0.0, 0.3, 0.6])
-    assert state.temperature == pytest.approx([305.0, 300.0, 295.0])
-    assert profile.wall_temperature_at(0.3) == pytest.approx(297.0)
-    c = state.properties.sound_speed
-    assert c[0] > c[1] > c[2]
-
-
 def test_liquid_saturation_spline_matches_coolprop_between_nodes():
     """The spline of ln p_sat reproduces CoolProp's IAPWS-95 saturation pressure off its grid."""
     import CoolProp.CoolProp as CP
@@ -200,17 +179,17 @@ def test_liquid_saturation_spline_matches_coolprop_between_nodes():
             CP.PropsSI("P", "T", t, "Q", 0, "Water"), rel=1e-7)
 
 
-def test_interpolated_profile_matches_fresh_evaluation():
-    """BoreProfile.air_at interpolates between its samples: against a fresh air_state at the
-    interpolated temperature and breath fraction, the sound speed agrees to 1e-5 (0.02 cent) for a
-    steep played-bore profile (35 -> 20 °C over 0.6 m in 2 cm samples, condensing near the top)."""
-    room = air.Room(293.15, 101325.0, 0.5)
-    x = np.linspace(0.0, 0.6, 31)
-    t = 308.15 - 15.0 * x / 0.6
-    phi = 0.9 - 0.6 * x / 0.6
-    profile = air.BoreProfile(room, x, t, phi, t)
-    mid = 0.5 * (x[1:] + x[:-1])
-    interpolated = profile.air_at(mid).properties.sound_speed
-    fresh = air.air_state(np.interp(mid, x, t), 101325.0, 293.15, 0.5,
-                          breath_fraction=np.interp(mid, x, phi)).properties.sound_speed
-    np.testing.assert_allclose(interpolated, fresh, rtol=1e-5)
+def test_air_properties_of_a_room_with_breath():
+    """The public entry point: the room's air at its own temperature, or taken to another one,
+    is the mixture of :func:`drift.air.air_state` (the same model, reached through a Room)."""
+    room = Room(298.15, 95e3, 0.6, 800e-6)
+    state = air.air_properties(room)
+    direct = air.air_state(298.15, 95e3, 298.15, 0.6, 800e-6)
+    assert float(state.properties.sound_speed) == float(direct.properties.sound_speed)
+    np.testing.assert_array_equal(state.mole_fractions, direct.mole_fractions)
+    assert float(state.relative_humidity) == pytest.approx(0.6)
+    warm = air.air_properties(room, breath_fraction=[0.0, 1.0], temperature_k=308.15)
+    assert warm.properties.sound_speed.shape == (2,)
+    assert float(warm.mole_fractions[1, 3]) == pytest.approx(0.045 * (1 - float(warm.mole_fractions[1, 4])))
+    # c rises with temperature (Cramer 1993, Table III signs)
+    assert float(warm.properties.sound_speed[0]) > float(state.properties.sound_speed)

@@ -1,25 +1,26 @@
-"""The drift chart against published sound-speed physics and its own invariants."""
+"""The drift chart (drift.chart) against published sound-speed physics and its own invariants."""
 
 import math
 
 import numpy as np
 import pytest
 
-from drift import air, bore, chart
-from drift.climate import Climate, Player
+from drift import chart, thermal
+from drift.climate import Climate, Player, Room
 from drift.constants import ZERO_CELSIUS
+from drift.instrument import DEFAULT_INSTRUMENT
 from references import cramer_sound_speed, davis_water_fraction
 
 REST = Player(playing=False)
 
 
 @pytest.fixture(scope="module")
-def instrument():
-    return bore.load_instrument(bore.DEFAULT_INSTRUMENT)
+def instrument(bundled_instruments):
+    return bundled_instruments[DEFAULT_INSTRUMENT]
 
 
 def resting(name, t_c, rh=0.0, player=REST):
-    return Climate(name, air.Room(t_c + ZERO_CELSIUS, 101325.0, rh, 420e-6), player)
+    return Climate(name, Room(t_c + ZERO_CELSIUS, 101325.0, rh, 420e-6), player)
 
 
 def drifts(result, climate_name):
@@ -69,10 +70,10 @@ def test_joint_change_centres_the_mean_drift_when_applied(instrument):
     warm = resting("warm", 28.0, 0.5)
     result = chart.drift_chart(instrument, [warm], reference=resting("cool", 18.0, 0.5))
     s = result.summary[0]
-    assert s.mean_drift_cents > 10 and s.adjust_mm > 0          # sharp: pull the joint out
-    changed = dataclass_free(instrument).with_joint_change(s.adjust_mm * 1e-3)
-    reference_hz = chart.frequencies(instrument, chart.bore_profile(instrument, resting("cool", 18.0, 0.5)))
-    applied = chart.frequencies(changed, chart.bore_profile(instrument, warm))
+    assert s.mean_drift_cents > 10 and s.adjust_m > 0           # sharp: pull the joint out
+    changed = dataclass_free(instrument).with_joint_change(s.adjust_m)
+    reference_hz = chart.frequencies(instrument, thermal.climate_profile(instrument, resting("cool", 18.0, 0.5)))
+    applied = chart.frequencies(changed, thermal.climate_profile(instrument, warm))
     assert abs(np.mean(1200 * np.log2(applied / reference_hz))) < 0.01
     assert s.residual_spread_cents == pytest.approx(np.ptp(s.adjusted_drift_cents))
 
@@ -106,4 +107,29 @@ def test_warning_when_the_joint_cannot_reach(instrument):
         instrument.tuning, min_change_m=-0.0005, max_change_m=0.0005))
     result = chart.drift_chart(tight, [resting("hot", 35.0, 0.5)], reference=resting("cold", 5.0, 0.5))
     s = result.summary[0]
-    assert s.adjust_mm > 0.5 and "exceeds what the joint allows" in s.warning
+    assert s.adjust_m > 0.5e-3 and "exceeds what the joint allows" in s.warning
+
+
+def test_chart_needs_named_notes(write_toml):
+    from conftest import CYLINDER
+    from drift.errors import DriftError
+    from drift.instrument import load_instrument
+
+    tube = load_instrument(write_toml(CYLINDER, "tube.toml"))
+    with pytest.raises(DriftError, match="no \\[\\[note\\]\\]; a chart needs named notes"):
+        chart.drift_chart(tube, [resting("warm", 30.0)])
+
+
+def test_without_a_joint_the_drift_stands(two_hole_pipe):
+    import dataclasses
+
+    from drift.instrument import load_instrument
+
+    pipe = dataclasses.replace(load_instrument(two_hole_pipe), tuning=None)
+    result = chart.drift_chart(pipe, [resting("warm", 30.0)], reference=resting("cool", 20.0))
+    s = result.summary[0]
+    assert s.adjust_m is None and "no tuning joint" in s.warning
+    assert s.residual_spread_cents == pytest.approx(s.spread_cents)
+    # the default reference is the design condition, here at rest at 20 °C and 50 % RH
+    assert chart.design_climate(pipe).name == "design"
+    assert chart.design_climate(pipe).player.playing is False

@@ -1,17 +1,10 @@
-"""Climate files: bundled scenarios, strict parsing, bad input."""
-
-import json
+"""Climates (drift.climate): climate files, bundled scenarios, the standard atmosphere, the room,
+the breath, blowing and play/rest plans."""
 
 import pytest
 
-from drift import air, climate
-from drift.errors import InputFileError
-
-
-def write(tmp_path, text, name="c.toml"):
-    path = tmp_path / name
-    path.write_text(text, encoding="utf-8")
-    return path
+from drift import climate
+from drift.errors import DriftError, InputFileError, OutOfRangeError
 
 
 def test_bundled_climates_cover_the_scenarios():
@@ -28,20 +21,20 @@ def test_bundled_climates_cover_the_scenarios():
     assert 74.7e3 < by_name["mountain-festival"].room.pressure_pa < 81.5e3
 
 
-def test_minimal_file_takes_documented_defaults(tmp_path):
-    c = climate.load_climate(str(write(tmp_path, 'name = "x"\n[air]\ntemperature_c = 12.5\n')))
+def test_minimal_file_takes_documented_defaults(write_toml):
+    c = climate.load_climate(str(write_toml('name = "x"\n[air]\ntemperature_c = 12.5\n')))
     assert c.room.temperature_k == pytest.approx(285.65)
     assert c.room.pressure_pa == pytest.approx(101325.0)
     assert c.room.relative_humidity == pytest.approx(0.5)
     assert c.room.co2_fraction == pytest.approx(420e-6)
     assert c.player.playing is True and c.player.minutes_played is None
-    assert c.player.breath == air.DEFAULT_BREATH
+    assert c.player.breath == climate.DEFAULT_BREATH
 
 
-def test_altitude_and_breath_overrides(tmp_path):
+def test_altitude_and_breath_overrides(write_toml):
     text = ('name = "x"\n[air]\ntemperature_c = 10\naltitude_m = 1000\n'
             '[player]\nminutes_played = 5\nbreath_temperature_c = 33\nbreath_co2_pct = 5\n')
-    c = climate.load_climate(str(write(tmp_path, text)))
+    c = climate.load_climate(str(write_toml(text)))
     # ISO 2533 at 1000 m: 89.876 kPa.
     assert c.room.pressure_pa == pytest.approx(89876.0, abs=2)
     assert c.player.minutes_played == 5
@@ -61,8 +54,8 @@ def test_altitude_and_breath_overrides(tmp_path):
     ('name = "x"\ncolour = "red"\n[air]\ntemperature_c = 10\n', "colour is not a known key"),
     ('name = "x"\n[air\n', "not valid TOML"),
 ])
-def test_bad_files_name_file_and_key(tmp_path, text, needle):
-    path = write(tmp_path, text)
+def test_bad_files_name_file_and_key(write_toml, text, needle):
+    path = write_toml(text, "c.toml")
     with pytest.raises(InputFileError) as info:
         climate.load_climate(str(path))
     assert str(path) in str(info.value)
@@ -70,12 +63,81 @@ def test_bad_files_name_file_and_key(tmp_path, text, needle):
 
 
 def test_unknown_bundled_name_suggests():
-    with pytest.raises(InputFileError, match="did you mean 'winter-church'"):
+    with pytest.raises(InputFileError, match="did you mean 'winter-church'") as info:
         climate.load_climate("winter-chruch")
+    assert str(info.value).startswith("unknown climate 'winter-chruch'")
+    assert "Bundled: cold-rehearsal, " in str(info.value)
+    assert str(info.value).endswith("or give the path of a .toml file")
 
 
-def test_climates_command(drift_cli):
-    table = drift_cli("climates", check_rc=0).stdout
-    assert "winter-church" in table and max(len(line) for line in table.splitlines()) <= 100
-    doc = json.loads(drift_cli("climates", "--format", "json", check_rc=0).stdout)
-    assert {c["name"] for c in doc["climates"]} >= {"winter-church", "sunny-lawn", "frozen-parade"}
+def test_iso_2533_pressures():
+    """ISO 2533:1975 (identical to the U.S. Standard Atmosphere 1976 below 11 km): 89 876 Pa at
+    1000 m and 79 501 Pa at 2000 m geometric altitude (table values, from memory)."""
+    assert climate.pressure_from_altitude([1000.0, 2000.0]) == pytest.approx([89876.0, 79501.0], abs=2.0)
+    assert float(climate.pressure_from_altitude(0.0)) == pytest.approx(101325.0)
+
+
+def test_altitude_range():
+    with pytest.raises(OutOfRangeError, match="altitude"):
+        climate.pressure_from_altitude(9000.0)
+
+
+@pytest.mark.parametrize("kwargs, needle", [
+    ({"temperature_k": 400.0}, "temperature"),
+    ({"temperature_k": 293.15, "pressure_pa": 20e3}, "pressure"),
+    ({"temperature_k": 293.15, "relative_humidity": 1.5}, "relative humidity"),
+    ({"temperature_k": 293.15, "co2_fraction": 0.2}, "co2"),
+    ({"temperature_k": float("nan")}, "temperature"),
+])
+def test_room_refuses_conditions_outside_the_model(kwargs, needle):
+    with pytest.raises(OutOfRangeError, match=needle):
+        climate.Room(**kwargs)
+
+
+@pytest.mark.parametrize("kwargs, needle", [
+    ({"temperature_k": 350.0}, "temperature"),
+    ({"co2_fraction": 0.2}, "breath co2"),
+    ({"o2_fraction": 0.25}, "breath o2"),
+])
+def test_breath_refuses_conditions_outside_the_model(kwargs, needle):
+    with pytest.raises(OutOfRangeError, match=needle):
+        climate.Breath(**kwargs)
+
+
+def test_parse_plan():
+    plan = climate.parse_plan("play:10, rest:2.5,PLAY:5")
+    assert [(p.state, p.duration_s) for p in plan] == [("play", 600.0), ("rest", 150.0), ("play", 300.0)]
+    assert climate.plan_duration_s(plan) == 1050.0
+
+
+@pytest.mark.parametrize("text, needle", [
+    ("play10", "play:MINUTES"), ("sing:3", "play:MINUTES"), ("play:x", "not a number"),
+    ("play:0", "allowed range"), ("rest:-1", "allowed range"), ("play:1000", "allowed range"),
+    ("play:nan", "allowed range"),
+])
+def test_bad_plans_are_explained(text, needle):
+    with pytest.raises(DriftError, match=needle):
+        climate.parse_plan(text)
+
+
+@pytest.mark.parametrize("kwargs, needle", [
+    ({"flow_m3_s": -1e-4}, "breath flow"), ({"flow_m3_s": 1.0}, "breath flow"),
+    ({"flow_m3_s": 1e-4, "inlet_breath_fraction": 2.0}, "inlet breath"),
+    ({"flow_m3_s": 1e-4, "exchange_time_s": 0.0}, "exchange"),
+    ({"flow_m3_s": 1e-4, "air_speed_m_s": -1.0}, "air speed"),
+    ({"flow_m3_s": float("nan")}, "breath flow"),
+])
+def test_bad_blowing_is_refused(kwargs, needle):
+    with pytest.raises(OutOfRangeError, match=needle):
+        climate.Blowing(**kwargs)
+
+
+def test_default_blowing_by_excitation():
+    # Reed and lips send all their breath down the bore, a jet a little, half of it room air
+    # (the estimates documented beside DEFAULT_BLOWING).
+    assert climate.default_blowing("reed").inlet_breath_fraction == 1.0
+    assert climate.default_blowing("lips").flow_m3_s > climate.default_blowing("reed").flow_m3_s
+    jet = climate.default_blowing("jet")
+    assert jet.inlet_breath_fraction == 0.5 and jet.flow_m3_s < climate.default_blowing("reed").flow_m3_s
+    with pytest.raises(InputFileError, match="reed, lips, jet"):
+        climate.default_blowing("bow")

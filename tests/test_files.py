@@ -1,0 +1,154 @@
+"""Strict reading of the project's TOML files (drift.files): messages name the file, the key and
+what is allowed."""
+
+import tomllib
+
+import pytest
+
+from drift import files
+from drift.errors import InputFileError
+from drift.files import Table
+
+
+def test_read_toml_missing_malformed_and_unreadable(tmp_path):
+    with pytest.raises(InputFileError) as info:
+        files.read_toml(tmp_path / "missing.toml", "climate file")
+    assert str(info.value) == f"{tmp_path / 'missing.toml'}: no such climate file"
+    bad = tmp_path / "bad.toml"
+    bad.write_text("name = \n")
+    with pytest.raises(InputFileError, match=f"{bad}: not valid TOML"):
+        files.read_toml(bad)
+    with pytest.raises(InputFileError, match="cannot read the file"):
+        files.read_toml(tmp_path)  # a folder
+    good = tmp_path / "good.toml"
+    good.write_text('name = "x"\n[air]\ntemperature_c = 1.5\n')
+    assert files.read_toml(good) == {"name": "x", "air": {"temperature_c": 1.5}}
+
+
+def test_read_toml_text():
+    assert files.read_toml_text("a = 1", "label") == {"a": 1}
+    with pytest.raises(InputFileError, match="^label: not valid TOML"):
+        files.read_toml_text("a = [", "label")
+
+
+def test_choose_suggests_and_lists_the_allowed_names():
+    options = ["yellow_brass", "abs", "ebonite"]
+    assert files.choose("abs", options, "material") == "abs"
+    with pytest.raises(InputFileError) as info:
+        files.choose("yelow_brass", options, "material")
+    assert str(info.value) == ("unknown material 'yelow_brass' (did you mean 'yellow_brass'?). "
+                               "Allowed: abs, ebonite, yellow_brass")
+    with pytest.raises(InputFileError) as info:
+        files.choose("zzz", options, "material")
+    assert "did you mean" not in str(info.value) and "Allowed: abs, ebonite, yellow_brass" in str(info.value)
+
+
+def test_load_named_reads_bundled_names_and_paths(tmp_path):
+    folder = tmp_path / "bundle"
+    folder.mkdir()
+    (folder / "cold-room.toml").write_text('name = "cold"\n')
+    (folder / "notes.md").write_text("not a data file")
+    assert set(files.bundled_files(folder)) == {"cold-room"}
+    data, label = files.load_named("cold-room", folder, "rooms", "climate")
+    assert data == {"name": "cold"} and label == "rooms/cold-room.toml"
+    # a path (an existing file, a name ending in .toml or holding a /) is read as a file
+    own = tmp_path / "mine.toml"
+    own.write_text('name = "mine"\n')
+    assert files.load_named(str(own), folder, "rooms", "climate") == ({"name": "mine"}, str(own))
+    with pytest.raises(InputFileError, match="no such climate file"):
+        files.load_named("elsewhere.toml", folder, "rooms", "climate")
+    with pytest.raises(InputFileError) as info:
+        files.load_named("cold-rom", folder, "rooms", "climate")
+    assert str(info.value) == ("unknown climate 'cold-rom' (did you mean 'cold-room'?). Bundled: cold-room; "
+                               "or give the path of a .toml file")
+    (folder / "broken.toml").write_text("x = ")
+    with pytest.raises(InputFileError, match="^rooms/broken.toml: not valid TOML"):
+        files.load_named("broken", folder, "rooms", "climate")
+
+
+def test_bundled_folder_falls_back_outside_a_package(tmp_path):
+    assert files.bundled_folder("drift.no_such_package", tmp_path) == tmp_path
+    assert files.bundled_folder("drift.data", tmp_path).joinpath("materials.toml").is_file()
+
+
+def test_unknown_keys_get_a_suggestion_or_the_allowed_list():
+    with pytest.raises(InputFileError) as info:
+        Table({"temprature_c": 1}, "c.toml", "[air]", ("temperature_c", "co2_ppm"))
+    assert str(info.value) == "c.toml: [air] temprature_c is not a known key; did you mean 'temperature_c'?"
+    with pytest.raises(InputFileError) as info:
+        Table({"colour": 1}, "c.toml", "", ("name", "air"))
+    assert str(info.value) == "c.toml: colour is not a known key; allowed: name, air"
+    with pytest.raises(InputFileError, match="c.toml: \\[air\\] must be a table"):
+        Table(3, "c.toml", "[air]", ())
+
+
+TOML = """
+name = "x"
+count = 3
+flag = true
+empty = ""
+nan_value = nan
+big = inf
+word = "warm"
+list = [1, 2]
+[inner]
+depth_mm = 12.5
+[[item]]
+size = 1
+[[item]]
+size = "large"
+"""
+
+
+@pytest.fixture
+def top():
+    return Table(tomllib.loads(TOML), "f.toml", "",
+                 ("name", "count", "flag", "empty", "nan_value", "big", "word", "list", "inner", "item"))
+
+
+def test_numbers_are_typed_and_range_checked(top):
+    assert top.number("count", low=0, high=10) == 3.0
+    assert top.number("absent", 7.0) == 7.0
+    assert top.number("absent") is None
+    cases = [
+        (dict(key="count", low=5, high=10, unit="mm"), "f.toml: count = 3 is outside the allowed range 5 to 10 mm"),
+        (dict(key="count", low=5), "f.toml: count = 3 is outside the allowed range 5 or more"),
+        (dict(key="count", high=1, unit="°C"), "f.toml: count = 3 is outside the allowed range 1 °C or less"),
+        (dict(key="nan_value"), "f.toml: nan_value = nan is outside the allowed range"),
+        (dict(key="big", low=0, high=1e9), "f.toml: big = inf is outside the allowed range 0 to 1e+09"),
+        (dict(key="word"), "f.toml: word must be a number, not 'warm'"),
+        (dict(key="flag"), "f.toml: flag must be a number, not True"),
+        (dict(key="list"), "f.toml: list must be a number, not [1, 2]"),
+        (dict(key="absent", required=True), "f.toml: absent is missing (a number is required)"),
+    ]
+    for kwargs, message in cases:
+        with pytest.raises(InputFileError) as info:
+            top.number(**kwargs)
+        assert str(info.value).startswith(message), (kwargs, str(info.value))
+
+
+def test_strings_booleans_and_tables(top):
+    assert top.string("name") == "x"
+    assert top.string("absent", "dflt") == "dflt"
+    with pytest.raises(InputFileError, match="f.toml: empty must be a non-empty string"):
+        top.string("empty")
+    with pytest.raises(InputFileError, match="f.toml: count must be a non-empty string"):
+        top.string("count")
+    with pytest.raises(InputFileError, match="f.toml: word = 'warm' is not allowed; use one of: hot, cold"):
+        top.string("word", choices=("hot", "cold"))
+    with pytest.raises(InputFileError, match="f.toml: absent is missing \\(a string is required\\)"):
+        top.string("absent", required=True)
+    assert top.boolean("flag", False) is True and top.boolean("absent", False) is False
+    with pytest.raises(InputFileError, match="f.toml: count must be true or false"):
+        top.boolean("count", False)
+    inner = top.table("inner", ("depth_mm",))
+    assert inner.where == "[inner]" and inner.number("depth_mm") == 12.5
+    with pytest.raises(InputFileError, match="f.toml: \\[inner.deep\\] is missing"):
+        inner.table("deep", (), required=True)
+    assert top.table("absent", ("a",)).data == {}
+    items = top.tables("item", ("size",))
+    assert [t.where for t in items] == ["[[item]] #1", "[[item]] #2"]
+    with pytest.raises(InputFileError, match="f.toml: \\[\\[item\\]\\] #2 size must be a number"):
+        items[1].number("size")
+    with pytest.raises(InputFileError, match="f.toml: name must be an array of tables"):
+        top.tables("name", ())

@@ -1,0 +1,55 @@
+"""Note names, equal temperament and cents (drift.scale)."""
+
+import numpy as np
+import pytest
+
+from drift import scale
+
+
+def test_note_names():
+    # MIDI numbering: A4 = 69, middle C = C4 = 60 (MIDI 1.0 specification; ISO 16 for A4 = 440 Hz).
+    assert scale.note_to_midi("A4") == 69
+    assert scale.note_to_midi("C4") == 60
+    assert scale.note_to_midi("Bb3") == scale.note_to_midi("A#3") == 58
+    assert scale.note_to_midi("Cb4") == 59 and scale.note_to_midi("B#3") == 60
+    assert scale.note_to_midi("C-1") == 0
+    assert [scale.note_to_midi(n) for n in ("A4", "C#4", "Bb4", "Ab3")] == [69, 61, 70, 56]
+    for bad in ("H4", "A", "4A", "A#b#4", ""):
+        with pytest.raises(ValueError):
+            scale.note_to_midi(bad)
+
+
+def test_note_name_spellings_and_parse_errors():
+    # Double accidentals, the musical sharp and flat signs, and lower-case letters (common practice).
+    assert scale.note_to_midi("F##4") == scale.note_to_midi("G4") == 67
+    assert scale.note_to_midi("Dbb4") == scale.note_to_midi("C4")
+    assert scale.note_to_midi("C♯4") == 61 and scale.note_to_midi("B♭3") == 58
+    assert scale.note_to_midi("a4") == 69 and scale.note_to_midi(" A4 ") == 69
+    for bad in ("A###4", "A4.5", "A 4", "Ab", "A4b", "X#3", None):
+        with pytest.raises(ValueError, match="scientific pitch notation"):
+            scale.note_to_midi(bad)
+
+
+def test_equal_temperament_and_cents():
+    assert scale.equal_temperament_hz("A4") == pytest.approx(440.0)
+    # Middle C at A4 = 440 Hz is 261.626 Hz (standard tables, e.g. Fletcher & Rossing 1998, App.)
+    assert scale.equal_temperament_hz("C4") == pytest.approx(261.6256, abs=1e-4)
+    assert scale.equal_temperament_hz("A4", a4_hz=442.0) == pytest.approx(442.0)
+    assert scale.cents(880.0, 440.0) == pytest.approx(1200.0)
+    assert scale.cents(300.0 * 2 ** (17.0 / 1200), 300.0) == pytest.approx(17.0)
+    assert np.isnan(scale.cents(np.nan, 440.0))
+
+
+def test_octaves_and_semitones_written_independently():
+    # Twelve-tone equal temperament: f = 440 * 2^(n/12) Hz for n semitones from A4 (ISO 16:1975;
+    # common practice). A3 = 220 Hz, A5 = 880 Hz, and C4 = 440 * 2^(-9/12) = 261.6256 Hz (from
+    # memory, as printed in tuning tables).
+    assert scale.equal_temperament_hz("A3") == pytest.approx(220.0, rel=1e-12)
+    assert scale.equal_temperament_hz("A5") == pytest.approx(880.0, rel=1e-12)
+    assert scale.equal_temperament_hz("C4") == pytest.approx(440.0 * 2 ** (-9 / 12), rel=1e-12)
+    # MIDI numbers as an array: one octave either side of A4.
+    np.testing.assert_allclose(scale.equal_temperament_hz(np.array([57, 69, 81])), [220.0, 440.0, 880.0])
+    # A semitone is 100 cents; an equal-tempered fifth 700.
+    assert scale.cents(scale.equal_temperament_hz("A#4"), 440.0) == pytest.approx(100.0)
+    assert scale.cents(scale.equal_temperament_hz("E5"), 440.0) == pytest.approx(700.0)
+    np.testing.assert_allclose(scale.cents([440.0, 880.0], [220.0, 440.0]), [1200.0, 1200.0])
