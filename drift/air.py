@@ -29,38 +29,58 @@ import numpy as np
 
 from drift import constants as K
 from drift.climate import DEFAULT_BREATH, Breath, Room
-from drift.errors import check_range
+from drift.errors import OutOfRangeError, check_range
 
 # --------------------------------------------------------------------------------------------
 # Water vapour
 # --------------------------------------------------------------------------------------------
 
 
+#: Where real-gas properties and the saturation pressure over liquid water come from:
+#: ``"table"`` (default), the shipped table of :mod:`drift.gas_table`, generated from CoolProp by
+#: tools/make_gas_table.py, no CoolProp at run time; ``"coolprop"``, CoolProp itself, state by
+#: state (for checking; about 2 s to load and a millisecond a state). Set with
+#: :func:`set_property_source`.
+PROPERTY_SOURCES = ("table", "coolprop")
+_source = ["table"]
+
+
+def set_property_source(source: str) -> str:
+    """Take gas properties from ``"table"`` or ``"coolprop"`` from now on; returns the previous
+    source. Every result computed after the call uses the new source."""
+    if source not in PROPERTY_SOURCES:
+        raise OutOfRangeError(f"property source '{source}' is not allowed; use one of: "
+                              f"{', '.join(PROPERTY_SOURCES)}")
+    previous, _source[0] = _source[0], source
+    return previous
+
+
+def property_source() -> str:
+    """The current source of gas properties (:func:`set_property_source`)."""
+    return _source[0]
+
+
 @functools.cache
-def _water_state():
-    import CoolProp.CoolProp as CP
-
-    return CP.AbstractState("HEOS", "Water")
-
-
-#: Grid of the saturation-pressure spline over liquid water [K]: 0 to 100 °C every 0.25 K.
-_LIQUID_GRID_K = np.linspace(K.ZERO_CELSIUS, K.ZERO_CELSIUS + 100.0, 401)
-
-
-@functools.cache
-def _liquid_spline():
-    """Cubic spline of ln p_sat over liquid water, fitted to IAPWS-95 values from CoolProp on
-    :data:`_LIQUID_GRID_K`; it reproduces them to better than 1e-7 relative between the nodes
-    (tests/test_air.py checks it against CoolProp at off-grid temperatures)."""
-    import CoolProp.CoolProp as CP
+def _liquid_spline(source: str):
+    """Cubic spline of ln p_sat over liquid water, 0 to 100 °C every 0.25 K, through IAPWS-95
+    values from CoolProp: stored in the gas table (``"table"``) or computed now (``"coolprop"``).
+    Between the nodes it reproduces CoolProp to better than 1e-7 relative (tests/test_air.py)."""
     from scipy.interpolate import CubicSpline
 
-    water = _water_state()
+    if source == "table":
+        from drift.gas_table import _table
+
+        table = _table()
+        return CubicSpline(table["liquid_t_k"], table["ln_p_sat_liquid_pa"])
+    import CoolProp.CoolProp as CP
+
+    water = CP.AbstractState("HEOS", "Water")
+    grid = np.linspace(K.ZERO_CELSIUS, K.ZERO_CELSIUS + 100.0, 401)
     values = []
-    for t in _LIQUID_GRID_K:
+    for t in grid:
         water.update(CP.QT_INPUTS, 0.0, float(t))
         values.append(water.p())
-    return CubicSpline(_LIQUID_GRID_K, np.log(values))
+    return CubicSpline(grid, np.log(values))
 
 
 def sublimation_pressure(temperature_k):
@@ -86,7 +106,8 @@ def saturation_vapour_pressure(temperature_k):
     out = np.empty_like(flat)
     cold = flat < K.ZERO_CELSIUS
     out[cold] = sublimation_pressure(flat[cold])
-    out[~cold] = np.exp(_liquid_spline()(flat[~cold]))
+    if np.any(~cold):
+        out[~cold] = np.exp(_liquid_spline(_source[0])(flat[~cold]))
     return out.reshape(t.shape)
 
 
@@ -225,16 +246,26 @@ def _properties_at(temperature_k: float, pressure_pa: float, x: tuple) -> tuple:
 
 
 def gas_properties(temperature_k, pressure_pa, mole_fractions) -> GasProperties:
-    """Real-gas properties of N2-O2-Ar-CO2-H2O mixtures, evaluated state by state.
+    """Real-gas properties of N2-O2-Ar-CO2-H2O mixtures.
 
     Speed of sound (thermodynamic, zero-frequency), density, cp and cv from the multi-fluid
     Helmholtz-energy mixture model of CoolProp's HEOS backend (Bell et al. 2014; pure fluids
     from their reference equations, IAPWS-95 for water); viscosity and thermal conductivity from
     CoolProp's mixture transport models. Gamma = cp/cv, Prandtl = cp eta / kappa.
 
-    Inputs broadcast: ``temperature_k`` [K] and ``pressure_pa`` [Pa] of shape S, mole fractions of
-    shape S + (5,). One AbstractState is reused, and repeated states are served from a cache
-    (state rounded to 1e-6 K, 1e-3 Pa, 1e-12 mol/mol), so batches with repeated states are cheap.
+    With the default source (:func:`set_property_source`) the values come from the shipped table
+    of :mod:`drift.gas_table`, which reproduces CoolProp within 1e-6 relative over the allowed
+    range (one deliberate difference in the conductivity of humid air below about 110 kPa and
+    above 27 °C: see that module); with ``"coolprop"`` from CoolProp state by state, one
+    AbstractState reused and repeated states served from a cache (state rounded to 1e-6 K,
+    1e-3 Pa, 1e-12 mol/mol).
+
+    Parameters
+    ----------
+    temperature_k, pressure_pa : array_like
+        Temperature [K] and pressure [Pa], of one shape S.
+    mole_fractions : array_like
+        Mole fractions of N2, O2, Ar, CO2 and H2O, shape S + (5,).
     """
     t = np.asarray(temperature_k, dtype=float)
     p = np.asarray(pressure_pa, dtype=float)
@@ -245,6 +276,12 @@ def gas_properties(temperature_k, pressure_pa, mole_fractions) -> GasProperties:
     x = np.broadcast_to(x, shape + (5,)).reshape(-1, 5)
     check_range("temperature_c", t, offset=-K.ZERO_CELSIUS)
     check_range("pressure_kpa", p, scale=1e-3)
+    if _source[0] == "table":
+        from drift.gas_table import table_properties
+
+        return GasProperties(*(np.reshape(v, shape) for v in table_properties(t, p, x)))
+    # CoolProp cannot solve a mixture without both CO2 and water: a trace of 1e-12 stands in.
+    x = np.where(x > 0.0, x, 1e-12)
     values = np.array(
         [
             _properties_at(round(ti, 6), round(pi, 3), tuple(np.round(xi, 12)))

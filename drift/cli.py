@@ -89,13 +89,20 @@ def air_options(command):
 
 @click.group(context_settings={"help_option_names": ["-h", "--help"], "max_content_width": 100})
 @click.version_option(__version__, "--version", prog_name="drift")
-def main():
+@click.option("--gas-properties", "gas_source", type=click.Choice(["table", "coolprop"]), default="table",
+              show_default=True,
+              help="Where real-gas properties come from: the shipped table made from CoolProp, or "
+                   "CoolProp itself for every state (slower: for checking).")
+def main(gas_source):
     """How each note of a wind instrument moves in pitch with the air inside its bore.
 
     Room temperature, humidity, altitude, CO2, the player's breath and warm-up change the speed
     of sound in the bore; drift computes the real-gas properties of that air, the resonances of
     the bore and the pitch of every note.
     """
+    from drift import air
+
+    air.set_property_source(gas_source)
 
 
 @main.command("air")
@@ -146,18 +153,20 @@ class LazyProgress:
         self.start = time.monotonic()
         self.enabled = sys.stderr.isatty()
 
-    def __call__(self):
+    def __call__(self, count: int = 1):
+        """Count ``count`` more steps done (never past the total: some totals are estimates)."""
         import time
 
-        self.done += 1
+        step = max(0, min(count, self.total - self.done))
+        self.done += step
         if not self.enabled:
             return
         if self.bar is None and time.monotonic() - self.start > 1.0:
             self.bar = click.progressbar(length=self.total, label=self.label, file=sys.stderr)
             self.bar.__enter__()
-            self.bar.update(self.done - 1)
+            self.bar.update(self.done - step)
         if self.bar is not None:
-            self.bar.update(1)
+            self.bar.update(step)
 
     def close(self):
         if self.bar is not None:
@@ -250,7 +259,9 @@ def warmup_command(instrument, climate_name, plan_text, step_s, reference_name, 
         reference_label = "design condition" + (" (played)" if design.playing else " (at rest)")
     # Profiles to evaluate: the samples, the reference, the steady state, and about 20 for the
     # settle-time search.
-    progress = LazyProgress(len(warmup.sample_times(plan, step_s)) + 22, "computing")
+    # Bore states searched: the reference and the steady state, about 20 knots per phase, and
+    # about 15 for the settle time from cold (an estimate; the bar stops at its end).
+    progress = LazyProgress(2 + 20 * len(plan) + 15, "computing")
     try:
         result = warmup.warmup_timeline(inst, room, plan, step_s, breath, reference, progress=progress,
                                         names=(climate_label, reference_label))

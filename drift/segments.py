@@ -285,11 +285,72 @@ class Wall:
             raise OutOfRangeError(
                 "wall flow fraction must lie in [0, 1] and, from where the flow enters, not grow along the bore")
 
+    def shells(self, layers: int) -> "Shells":
+        """The wall of every segment cut into ``layers`` concentric layers of equal thickness:
+        heat capacities and conductances (:class:`Shells`).
+
+        Radial conduction between layer centres and to the two surfaces through cylindrical
+        shells, R = ln(r2/r1) / (2 pi k L) (Incropera et al. 2007, Eq. 3.27), with the
+        across-grain conductivity; axial conduction between neighbouring segments, layer by
+        layer, with the axial one.
+        """
+        n, m = self.positions_m.size, int(layers)
+        mat = self.material
+        a = self.inner_radius_m
+        b = a + self.thickness_m
+        dx = self.lengths_m
+        radii = a[:, None] + (b - a)[:, None] * np.linspace(0.0, 1.0, m + 1)[None, :]
+        mid = 0.5 * (radii[:, :-1] + radii[:, 1:])
+        area = np.pi * (radii[:, 1:] ** 2 - radii[:, :-1] ** 2)
+        two_pi_k = 2.0 * np.pi * mat.conductivity_across * dx
+        if n > 1:
+            span = 0.5 * (dx[:-1] + dx[1:])
+            axial = mat.conductivity * 0.5 * (area[:-1] + area[1:]) / span[:, None]
+        else:
+            axial = np.zeros((0, m))
+        return Shells(
+            capacity_j_k=mat.volumetric_heat_capacity * area * dx[:, None],
+            radial_w_k=two_pi_k[:, None] / np.log(mid[:, 1:] / mid[:, :-1]) if m > 1 else np.zeros((n, 0)),
+            axial_w_k=axial,
+            inner_k_w=np.log(mid[:, 0] / a) / two_pi_k,
+            outer_k_w=np.log(b / mid[:, -1]) / two_pi_k,
+            outer_area_m2=2.0 * np.pi * b * dx,
+            outer_diameter_m=2.0 * b,
+        )
+
     @property
     def edges_m(self) -> np.ndarray:
         """Segment boundaries [m], (n + 1,)."""
         start = self.positions_m[0] - 0.5 * self.lengths_m[0]
         return start + np.concatenate([[0.0], np.cumsum(self.lengths_m)])
+
+
+@dataclass(frozen=True)
+class Shells:
+    """The wall layers of every segment (:meth:`Wall.shells`), n segments by m layers.
+
+    Attributes
+    ----------
+    capacity_j_k : ndarray (n, m)
+        Heat capacity of each layer [J/K].
+    radial_w_k : ndarray (n, m - 1)
+        Conductance between neighbouring layers' centres [W/K].
+    axial_w_k : ndarray (n - 1, m)
+        Conductance along the bore between neighbouring segments' layers [W/K].
+    inner_k_w, outer_k_w : ndarray (n,)
+        Resistance from the inner surface to the first layer's centre, and from the last layer's
+        centre to the outer surface [K/W].
+    outer_area_m2, outer_diameter_m : ndarray (n,)
+        Outer surface [m^2] and outer diameter [m].
+    """
+
+    capacity_j_k: np.ndarray
+    radial_w_k: np.ndarray
+    axial_w_k: np.ndarray
+    inner_k_w: np.ndarray
+    outer_k_w: np.ndarray
+    outer_area_m2: np.ndarray
+    outer_diameter_m: np.ndarray
 
 
 def flow_fraction_from_exits(positions_m, exits_m) -> np.ndarray:

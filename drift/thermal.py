@@ -181,27 +181,10 @@ class _Model:
         if m < 1:
             raise OutOfRangeError("the wall needs at least one radial layer")
         self.n, self.m = n, m = wall.positions_m.size, m
-        mat = wall.material
-        a = wall.inner_radius_m
-        b = a + wall.thickness_m
-        dx = wall.lengths_m
-        radii = a[:, None] + (b - a)[:, None] * np.linspace(0.0, 1.0, m + 1)[None, :]
-        mid = 0.5 * (radii[:, :-1] + radii[:, 1:])
-        area = np.pi * (radii[:, 1:] ** 2 - radii[:, :-1] ** 2)
-        self.capacity = mat.volumetric_heat_capacity * area * dx[:, None]  # (n, m) [J/K]
-        two_pi_k = 2.0 * np.pi * mat.conductivity_across * dx
-        # Radial conduction between layer centres (cylindrical shell, Incropera Eq. 3.27).
-        self.g_radial = two_pi_k[:, None] / np.log(mid[:, 1:] / mid[:, :-1]) if m > 1 else np.zeros((n, 0))
-        self.r_inner = np.log(mid[:, 0] / a) / two_pi_k      # inner surface -> first layer [K/W]
-        self.r_outer = np.log(b / mid[:, -1]) / two_pi_k     # last layer -> outer surface [K/W]
-        # Axial conduction between neighbouring segments, layer by layer.
-        if n > 1:
-            span = 0.5 * (dx[:-1] + dx[1:])
-            self.g_axial = mat.conductivity * 0.5 * (area[:-1] + area[1:]) / span[:, None]
-        else:
-            self.g_axial = np.zeros((0, m))
-        self.outer_area = 2.0 * np.pi * b * dx
-        self.outer_diameter = 2.0 * b
+        shells = wall.shells(m)
+        self.capacity, self.g_radial, self.g_axial = shells.capacity_j_k, shells.radial_w_k, shells.axial_w_k
+        self.r_inner, self.r_outer = shells.inner_k_w, shells.outer_k_w
+        self.outer_area, self.outer_diameter = shells.outer_area_m2, shells.outer_diameter_m
         self.t_room = room.temperature_k
         p = room.pressure_pa
 
@@ -213,8 +196,11 @@ class _Model:
         x_in, _ = air.mix(room_x, breath_x, phi, self.t_in, p)
         self.x_in_water = float(x_in[4])
         gas_in = air.gas_properties(self.t_in, p, x_in)
+        # The flowing gas at the mean of inlet and room temperature, its water capped at
+        # saturation there as it is in the bore (the excess condenses on the wall).
         t_film = 0.5 * (self.t_in + room.temperature_k)
-        gas = air.gas_properties(t_film, p, x_in)
+        x_film, _ = air.mix(room_x, breath_x, phi, t_film, p)
+        gas = air.gas_properties(t_film, p, x_film)
         room_gas = air.gas_properties(room.temperature_k, p, room_x)
         self.cp = float(gas.cp)
         self.k_gas = float(gas.conductivity)
@@ -454,7 +440,7 @@ def steady_state(wall: Wall, room: Room, blowing: Blowing, breath: Breath = DEFA
     worst = float(np.max(np.abs(residual(solution.x))))
     if not solution.success and worst > 1e-9:
         # Fall back on a long integration of the transient, then polish.
-        y = _integrate(model, True, guess, 0.0, 4 * 3600.0, [4 * 3600.0])[0][-1]
+        y = _integrate(model, True, guess, 0.0, 4 * 3600.0).y[:-2, -1]
         solution = root(residual, y, method="hybr", options={"xtol": 1e-12})
         worst = float(np.max(np.abs(residual(solution.x))))
         if worst > 1e-6:
@@ -462,94 +448,116 @@ def steady_state(wall: Wall, room: Room, blowing: Blowing, breath: Breath = DEFA
     return _state(model, math.inf, "play", solution.x.reshape(shape), model.phi_play)
 
 
-def _integrate(model: _Model, playing: bool, y0, t0, t1, t_eval):
-    """Integrate the wall temperatures (and two heat totals) from t0 to t1 [s]; values at t_eval."""
+def _integrate(model: _Model, playing: bool, y0, t0, t1):
+    """Integrate the wall temperatures (and two heat totals) from t0 to t1 [s] with dense output."""
     from scipy.integrate import solve_ivp
 
     n_nodes = model.n * model.m
     y0 = np.asarray(y0, dtype=float)
     if y0.size == n_nodes:
         y0 = np.concatenate([y0, [0.0, 0.0]])
-    sol = solve_ivp(model.rhs(playing), (t0, t1), y0, method="LSODA", t_eval=np.asarray(t_eval, dtype=float),
+    sol = solve_ivp(model.rhs(playing), (t0, t1), y0, method="LSODA", dense_output=True,
                     rtol=1e-7, atol=np.concatenate([np.full(n_nodes, 1e-6), [1e-3, 1e-3]]))
     if not sol.success:
         raise OutOfRangeError(f"the thermal integration failed: {sol.message}")
-    return sol.y[:n_nodes].T, sol.y[n_nodes:].T, sol.y[:, -1] if sol.y.shape[1] else y0
+    return sol
 
 
-def timeline(wall: Wall, room: Room, plan: Sequence[Phase], times_s, blowing: Blowing,
-             breath: Breath = DEFAULT_BREATH, initial: ThermalState | None = None,
-             layers: int | None = None) -> list[ThermalState]:
-    """Thermal states at chosen times of a play/rest plan.
+class Trajectory:
+    """The thermal timeline of a play/rest plan, integrated once, and its state at any time.
 
     The plan starts from ``initial`` (default: wall at room temperature, bore full of room air).
     While playing, the wall temperatures follow C dT/dt = (heat from the breath) + (conduction) -
-    (loss to the room), integrated by :func:`scipy.integrate.solve_ivp` (LSODA, rtol 1e-7); the air
-    is quasi-steady over the wall. While resting there is no flow, the air takes the inner-wall
-    temperature and the breath fraction decays as exp(-t / tau) with tau =
-    ``blowing.exchange_time_s``. A time on the boundary between two phases belongs to the earlier one;
-    time 0 to the first.
+    (loss to the room), integrated phase by phase by :func:`scipy.integrate.solve_ivp` (LSODA,
+    rtol 1e-7) with its dense output (the solver's own interpolant between steps), so a state at
+    any time costs no new integration; the air is quasi-steady over the wall. While resting there
+    is no flow, the air takes the inner-wall temperature and the breath fraction decays as
+    exp(-t / tau) with tau = ``blowing.exchange_time_s``.
 
     Parameters
     ----------
     wall : Wall
     room : Room
     plan : sequence of Phase
-    times_s : array_like
-        Times from the start of the plan [s], within [0, total duration].
     blowing : Blowing
     breath : Breath
     initial : ThermalState, optional
         State to start from (its wall layers and breath fraction).
     layers : int, optional
         Radial layers of the wall.
-
-    Returns
-    -------
-    list of ThermalState, one per time, in the order of ``times_s``.
     """
-    if not plan:
-        raise OutOfRangeError("a plan needs at least one phase")
-    model = _Model(wall, room, blowing, breath, layers)
-    times = np.asarray(times_s, dtype=float).ravel()
-    total = plan_duration_s(plan)
-    if times.size and (np.any(~np.isfinite(times)) or times.min() < 0.0 or times.max() > total + 1e-9):
-        raise OutOfRangeError(f"times must lie within the plan, 0 to {total / 60.0:g} min")
-    shape = (model.n, model.m)
-    if initial is None:
-        y = np.full(model.n * model.m, room.temperature_k)
-        phi = np.zeros(model.n)
-    else:
-        if initial.wall_k.shape != shape:
-            raise OutOfRangeError("the initial state does not belong to this wall (segments or layers differ)")
-        y = initial.wall_k.ravel().copy()
-        phi = np.interp(wall.positions_m, initial.profile.positions_m, initial.profile.breath_fraction)
-    y = np.concatenate([y, [0.0, 0.0]])
-    order = np.argsort(times, kind="stable")
-    out: list[ThermalState | None] = [None] * times.size
-    start = 0.0
-    k = 0
-    for index, phase in enumerate(plan):
-        end = start + phase.duration_s if index < len(plan) - 1 else total
-        playing = phase.state == "play"
-        picks = []
-        while k < order.size and (times[order[k]] <= end + 1e-9):
-            picks.append(order[k])
-            k += 1
-        wanted = np.clip(np.array([times[i] for i in picks]), start, end)
-        t_eval, where = np.unique(np.append(wanted, end), return_inverse=True)
-        walls, totals, y = _integrate(model, playing, y, start, end, t_eval)
-        phi_start = phi
-        for j, i in enumerate(picks):
-            if playing:
-                phi_now = model.phi_play
-            else:
-                phi_now = phi_start * math.exp(-(wanted[j] - start) / blowing.exchange_time_s)
-            row = where[j]
-            out[i] = _state(model, times[i], phase.state, walls[row].reshape(shape), phi_now, totals[row])
-        phi = model.phi_play if playing else phi_start * math.exp(-(end - start) / blowing.exchange_time_s)
-        start = end
-    return out
+
+    def __init__(self, wall: Wall, room: Room, plan: Sequence[Phase], blowing: Blowing,
+                 breath: Breath = DEFAULT_BREATH, initial: ThermalState | None = None,
+                 layers: int | None = None):
+        if not plan:
+            raise OutOfRangeError("a plan needs at least one phase")
+        self.model = model = _Model(wall, room, blowing, breath, layers)
+        self.plan = tuple(plan)
+        self.total_s = plan_duration_s(plan)
+        shape = (model.n, model.m)
+        if initial is None:
+            y = np.full(model.n * model.m, room.temperature_k)
+            phi = np.zeros(model.n)
+        else:
+            if initial.wall_k.shape != shape:
+                raise OutOfRangeError("the initial state does not belong to this wall (segments or layers differ)")
+            y = initial.wall_k.ravel().copy()
+            phi = np.interp(wall.positions_m, initial.profile.positions_m, initial.profile.breath_fraction)
+        self.starts_s, self.ends_s, self._solutions, self._phi_start = [], [], [], []
+        start = 0.0
+        for index, phase in enumerate(self.plan):
+            end = start + phase.duration_s if index < len(self.plan) - 1 else self.total_s
+            solution = _integrate(model, phase.state == "play", y, start, end)
+            self.starts_s.append(start)
+            self.ends_s.append(end)
+            self._solutions.append(solution)
+            self._phi_start.append(phi)
+            y = solution.y[:, -1]
+            phi = self._breath_fraction(index, end)
+            start = end
+
+    def _breath_fraction(self, index: int, time_s: float) -> np.ndarray:
+        if self.plan[index].state == "play":
+            return self.model.phi_play
+        tau = self.model.blowing.exchange_time_s
+        return self._phi_start[index] * math.exp(-(time_s - self.starts_s[index]) / tau)
+
+    def phase_of(self, time_s: float) -> int:
+        """Index of the phase a time [s] belongs to: a time on the boundary between two phases
+        belongs to the earlier one, time 0 to the first."""
+        if not (np.isfinite(time_s) and -1e-9 <= time_s <= self.total_s + 1e-9):
+            raise OutOfRangeError(f"times must lie within the plan, 0 to {self.total_s / 60.0:g} min")
+        return min(int(np.searchsorted(self.ends_s, time_s - 1e-9)), len(self.plan) - 1)
+
+    def state(self, time_s: float, phase: int | None = None) -> ThermalState:
+        """The :class:`ThermalState` at a time [s] of the plan.
+
+        ``phase`` evaluates the given phase's dynamics at ``time_s`` (clipped to the phase), for
+        example a play phase at its own start, just after a rest; default :meth:`phase_of`.
+        """
+        index = self.phase_of(time_s) if phase is None else int(phase)
+        t = min(max(float(time_s), self.starts_s[index]), self.ends_s[index])
+        y = self._solutions[index].sol(t)
+        n_nodes = self.model.n * self.model.m
+        return _state(self.model, float(time_s), self.plan[index].state,
+                      y[:n_nodes].reshape(self.model.n, self.model.m), self._breath_fraction(index, t),
+                      y[n_nodes:])
+
+    def states(self, times_s) -> list[ThermalState]:
+        """:meth:`state` at every time [s], in the order given."""
+        return [self.state(float(t)) for t in np.asarray(times_s, dtype=float).ravel()]
+
+
+def timeline(wall: Wall, room: Room, plan: Sequence[Phase], times_s, blowing: Blowing,
+             breath: Breath = DEFAULT_BREATH, initial: ThermalState | None = None,
+             layers: int | None = None) -> list[ThermalState]:
+    """Thermal states at chosen times [s] of a play/rest plan (:class:`Trajectory`).
+
+    A time on the boundary between two phases belongs to the earlier one; time 0 to the first.
+    Returns one :class:`ThermalState` per time, in the order of ``times_s``.
+    """
+    return Trajectory(wall, room, plan, blowing, breath, initial, layers).states(times_s)
 
 
 # --------------------------------------------------------------------------------------------
@@ -563,12 +571,20 @@ def instrument_steady_state(instrument: Instrument, room: Room, breath: Breath =
     return steady_state(instrument_wall(instrument), room, blowing or default_blowing(instrument.excitation), breath)
 
 
+def instrument_trajectory(instrument: Instrument, room: Room, plan: Sequence[Phase],
+                          breath: Breath = DEFAULT_BREATH, blowing: Blowing | None = None,
+                          initial: ThermalState | None = None) -> Trajectory:
+    """:class:`Trajectory` of an instrument over a plan (its wall from :func:`instrument_wall`,
+    its blowing by default the excitation's)."""
+    blowing = blowing or default_blowing(instrument.excitation)
+    return Trajectory(instrument_wall(instrument), room, plan, blowing, breath, initial)
+
+
 def instrument_timeline(instrument: Instrument, room: Room, plan: Sequence[Phase], times_s,
                         breath: Breath = DEFAULT_BREATH, blowing: Blowing | None = None,
                         initial: ThermalState | None = None) -> list[ThermalState]:
-    """:func:`timeline` of an instrument (its wall from :func:`instrument_wall`)."""
-    blowing = blowing or default_blowing(instrument.excitation)
-    return timeline(instrument_wall(instrument), room, plan, times_s, blowing, breath, initial)
+    """:func:`timeline` of an instrument (:func:`instrument_trajectory`)."""
+    return instrument_trajectory(instrument, room, plan, breath, blowing, initial).states(times_s)
 
 
 def bore_profile(instrument: Instrument, room: Room, playing: bool = True, minutes_played: float | None = None,

@@ -110,6 +110,90 @@ def sample_times(plan: Sequence[Phase], step_s: float) -> np.ndarray:
 
 #: Longest continuous playing searched for a settle time [s] (10 h).
 SETTLE_SEARCH_S = K.LONGEST_PLAN_S
+#: Largest difference [cent] between a note's interpolated pitch and a full resonance search at
+#: the rows checked; knots are added until every check passes (:func:`phase_pitch`).
+KNOT_TOLERANCE_CENTS = 0.02
+#: First knots of a phase, as fractions of its duration from its start: dense at the start, where
+#: the breath fills or leaves the bore and the wall moves fastest.
+FIRST_KNOTS = (0.0, 1 / 64, 1 / 16, 1 / 4, 1 / 2, 1.0)
+
+
+def frequencies_hz(instrument: Instrument, profiles, notes) -> np.ndarray:
+    """Playing frequency [Hz] of each note (columns) in each bore state (rows)."""
+    return np.array([[r.frequency_hz for r in pitch.note_frequencies(instrument, p, notes=notes)]
+                     for p in profiles]).reshape(len(profiles), len(notes))
+
+
+def phase_pitch(pitch_at, start_s: float, times_s, tolerance_cents: float = KNOT_TOLERANCE_CENTS,
+                progress=None) -> np.ndarray:
+    """Frequencies [Hz] of every note at the ascending ``times_s`` of one phase, from as few full
+    resonance searches as the interpolation between them allows.
+
+    Parameters
+    ----------
+    pitch_at : callable
+        Times [s] (k,) -> frequencies [Hz] (k, notes) by full resonance searches of the phase's
+        bore states.
+    start_s : float
+        Start of the phase [s] (its bore state is the first knot).
+    times_s : array_like
+        Ascending times wanted [s], after ``start_s``.
+    tolerance_cents : float
+        Largest allowed interpolation error [cent] at the checked times.
+    progress : callable, optional
+        Called with the number of states searched after each batch.
+
+    Notes
+    -----
+    The knots are the phase's start and some of ``times_s``: first the times nearest to
+    :data:`FIRST_KNOTS` of the phase and the last one. log2 f of each note is interpolated
+    between knots by a monotone piecewise cubic (Fritsch & Carlson 1980,
+    ``scipy.interpolate.PchipInterpolator``). Then the middle time of every gap between knots is
+    searched in full and compared with the interpolation without it; each gap whose middle
+    misses by more than ``tolerance_cents`` is split there and its halves checked the same way.
+    Every time searched becomes a knot, so no more than ``len(times_s) + 1`` states are ever
+    searched, and a time that is a knot gets its searched value. Where a search finds no resonance for a register (NaN), every time is searched.
+    """
+    from scipy.interpolate import PchipInterpolator
+
+    times = np.asarray(times_s, dtype=float)
+    # The knot grid: the phase's start (unless it is the first time wanted), then the times.
+    lead = 0 if times[0] <= start_s else 1
+    grid = np.concatenate([[start_s], times]) if lead else times
+    n = grid.size - 1
+    span = grid[-1] - start_s
+    first = {0, n} | {int(np.argmin(np.abs(grid - (start_s + f * span)))) for f in FIRST_KNOTS}
+    known = np.full((n + 1, 0), np.nan)
+
+    def search(indices):
+        nonlocal known
+        found = np.log2(pitch_at(grid[indices]))
+        if known.shape[1] == 0:
+            known = np.full((n + 1, found.shape[1]), np.nan)
+        known[indices] = found
+        if progress is not None:
+            progress(len(indices))
+        return found
+
+    knots = sorted(first)
+    search(np.array(knots))
+    pending = [(a, b) for a, b in zip(knots[:-1], knots[1:]) if b - a > 1]
+    while pending and np.all(np.isfinite(known[knots])):
+        middles = np.array([(a + b) // 2 for a, b in pending])
+        guess = PchipInterpolator(grid[knots], known[knots], axis=0)(grid[middles])
+        found = search(middles)
+        miss = np.max(np.abs(guess - found), axis=1) * 1200.0
+        knots = sorted(set(knots) | set(middles.tolist()))
+        pending = [half for (a, b), m, err in zip(pending, middles, miss) if not err <= tolerance_cents
+                   for half in ((a, m), (m, b)) if half[1] - half[0] > 1]
+    if not np.all(np.isfinite(known[knots])):
+        rest = np.flatnonzero(np.isnan(known[lead:, 0])) + lead
+        if rest.size:
+            search(rest)
+        return 2.0 ** known[lead:]
+    if len(knots) == 1:
+        return 2.0 ** known[knots]
+    return 2.0 ** PchipInterpolator(grid[knots], known[knots], axis=0)(times)
 
 
 def settle_from_cold(instrument: Instrument, room: Room, steady_hz, tolerance_cents: float = 2.0,
@@ -119,23 +203,22 @@ def settle_from_cold(instrument: Instrument, room: Room, steady_hz, tolerance_ce
     ``tolerance_cents`` of its steady-state frequency ``steady_hz`` [Hz].
 
     Found by bracketed root finding (:func:`scipy.optimize.brentq`, to ``resolution_s``) on
-    g(t) = max over notes |1200 log2(f(t) / f_steady)| - tolerance, each f(t) from a fresh
-    timeline of t seconds' playing. This assumes the approach is monotone, as the wall
-    temperatures are when warming from cold; returns 0 when the first note is already inside and
-    None when 10 h of playing do not reach the band.
+    g(t) = max over notes |1200 log2(f(t) / f_steady)| - tolerance, f(t) from the states of one
+    thermal trajectory of 10 h of playing (:class:`drift.thermal.Trajectory`). This assumes the
+    approach is monotone, as the wall temperatures are when warming from cold; returns 0 when the
+    first note is already inside and None when 10 h of playing do not reach the band.
     """
     from scipy.optimize import brentq
 
     notes = instrument.fingerings() if notes is None else tuple(notes)
     steady_hz = np.asarray(steady_hz, dtype=float)
+    trajectory = thermal.instrument_trajectory(instrument, room, (Phase("play", SETTLE_SEARCH_S),), breath,
+                                               blowing)
 
     def gap(t):
-        t = float(t)
-        plan = (Phase("play", max(t, 1.0)),)
-        state = thermal.instrument_timeline(instrument, room, plan, [t], breath, blowing)[0]
-        f = np.array([r.frequency_hz for r in pitch.note_frequencies(instrument, state.profile, notes=notes)])
+        f = frequencies_hz(instrument, [trajectory.state(float(t)).profile], notes)[0]
         if progress is not None:
-            progress()
+            progress(1)
         return float(np.nanmax(np.abs(cents(f, steady_hz)))) - tolerance_cents
 
     if gap(0.0) <= 0.0:
@@ -171,7 +254,7 @@ def warmup_timeline(instrument: Instrument, room: Room, plan: Sequence[Phase] | 
     tolerance_cents : float
         Band around the steady state [cent] for the settle times.
     progress : callable, optional
-        Called once per bore state evaluated.
+        Called with the number of bore states just searched, after each batch.
     names : (str, str)
         Names of the climate and the reference, for reports.
 
@@ -181,11 +264,13 @@ def warmup_timeline(instrument: Instrument, room: Room, plan: Sequence[Phase] | 
 
     Notes
     -----
-    Thermal states at :func:`sample_times` (:func:`drift.thermal.instrument_timeline`) become
-    note frequencies through :func:`drift.pitch.note_frequencies`. The settle time of each play
-    phase is read on the sample grid against the steady state of playing
-    (:func:`drift.thermal.instrument_steady_state`, :func:`settle_time`); the settle time from
-    cold by root finding (:func:`settle_from_cold`).
+    The thermal timeline is integrated once (:func:`drift.thermal.instrument_trajectory`) and
+    read at :func:`sample_times`; the note frequencies come from full resonance searches
+    (:func:`drift.pitch.note_frequencies`) at a few knots of each phase, interpolated in time
+    between them and checked against full searches to :data:`KNOT_TOLERANCE_CENTS`
+    (:func:`phase_pitch`). The settle time of each play phase is read on the sample grid against
+    the steady state of playing (:func:`drift.thermal.instrument_steady_state`,
+    :func:`settle_time`); the settle time from cold by root finding (:func:`settle_from_cold`).
 
     Examples
     --------
@@ -197,34 +282,35 @@ def warmup_timeline(instrument: Instrument, room: Room, plan: Sequence[Phase] | 
     """
     plan = parse_plan(plan) if isinstance(plan, str) else tuple(plan)
     times = sample_times(plan, step_s)
-    states = thermal.instrument_timeline(instrument, room, plan, times, breath, blowing)
+    trajectory = thermal.instrument_trajectory(instrument, room, plan, breath, blowing)
+    states = trajectory.states(times)
     steady = thermal.instrument_steady_state(instrument, room, breath, blowing)
     reference = thermal.design_profile(instrument, breath) if reference is None else reference
     notes = instrument.fingerings()
     labels = tuple(n.name if n.name else f"fingering {i + 1}" for i, n in enumerate(notes))
 
-    def hz(profile):
-        out = np.array([r.frequency_hz for r in pitch.note_frequencies(instrument, profile, notes=notes)])
-        if progress is not None:
-            progress()
-        return out
+    ref, steady_hz = frequencies_hz(instrument, [reference, steady.profile], notes)
+    if progress is not None:
+        progress(2)
+    freqs = np.empty((len(times), len(notes)))
+    phase_of_row = np.array([trajectory.phase_of(t) for t in times])
+    for index in range(len(plan)):
+        rows = phase_of_row == index
+        if not np.any(rows):
+            continue
 
-    freqs = np.array([hz(s.profile) for s in states])
-    ref = hz(reference)
-    steady_hz = hz(steady.profile)
+        def pitch_at(ts, index=index):
+            return frequencies_hz(instrument, [trajectory.state(t, index).profile for t in ts], notes)
+
+        freqs[rows] = phase_pitch(pitch_at, trajectory.starts_s[index], times[rows], progress=progress)
     drift = cents(freqs, ref[None, :])
     steady_cents = cents(freqs, steady_hz[None, :])
     settle = []
-    start = 0.0
     for index, phase in enumerate(plan):
-        end = start + phase.duration_s
         if phase.state == "play":
-            # A boundary time belongs to the phase before it (see :func:`timeline`).
-            after_start = (times > start + 1e-9) | ((times <= 1e-9) if index == 0 else False)
-            inside = after_start & (times <= end + 1e-9)
+            inside = phase_of_row == index
             t = settle_time(times[inside], steady_cents[inside], np.zeros(len(notes)), tolerance_cents)
-            settle.append((index, start, t))
-        start = end
+            settle.append((index, trajectory.starts_s[index], t))
     from_cold = settle_from_cold(instrument, room, steady_hz, tolerance_cents, breath, blowing, notes,
                                  progress)
     wall = instrument_wall(instrument)

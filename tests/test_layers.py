@@ -16,7 +16,7 @@ PACKAGE = Path(__file__).resolve().parent.parent / "drift"
 LAYERS = {
     "base": ["constants", "errors", "files"],
     "data": ["scale", "materials", "climate", "instrument"],
-    "physics": ["air", "heat_transfer", "acoustics"],
+    "physics": ["gas_table", "air", "heat_transfer", "acoustics"],
     "segments": ["segments"],
     "thermal": ["thermal"],
     "pitch": ["pitch"],

@@ -49,6 +49,16 @@ def test_help_and_version_do_not_load_coolprop(args):
     assert result.stdout.strip()
 
 
+def test_air_and_resonances_run_without_coolprop():
+    """The common path reads the shipped gas table: CoolProp is never imported (issue 9)."""
+    for args in (["air"], ["resonances", "--count", "2"]):
+        result = run([sys.executable, "-X", "importtime", "-m", "drift", *args])
+        assert result.returncode == 0, result.stderr
+        imported = [line.rsplit("|", 1)[-1].strip() for line in result.stderr.splitlines() if "|" in line]
+        assert "drift.gas_table" in imported
+        assert not any(name.startswith("CoolProp") for name in imported)
+
+
 def test_progress_bar_goes_to_a_terminal_stderr_only():
     """With stderr on a terminal (a pseudo-terminal here), a run of several seconds shows a progress
     bar there, and the JSON on stdout stays clean. (The first step, the played design condition,
