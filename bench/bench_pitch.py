@@ -10,7 +10,7 @@ import numpy as np
 from drift import pitch
 from drift.climate import Room
 from drift.instrument import bundled_instruments, load_instrument
-from drift.thermal import BoreProfile
+from drift.bore_state import BoreProfile
 
 
 def best_of(function, repeat=7):

@@ -8,9 +8,10 @@ The layers, each a module answering one physical question, from the bottom up:
 
 - base: :mod:`drift.errors`, :mod:`drift.constants`, :mod:`drift.files`
 - data: :mod:`drift.scale`, :mod:`drift.materials`, :mod:`drift.climate`, :mod:`drift.instrument`
-- physics: :mod:`drift.air`, :mod:`drift.heat_transfer`, :mod:`drift.acoustics`
+- physics: :mod:`drift.gas_table`, :mod:`drift.air`, :mod:`drift.heat_transfer`, :mod:`drift.acoustics`
 - :mod:`drift.segments` (the bore cut into acoustic and wall segments)
-- :mod:`drift.thermal` (the state of the air and wall along the played bore)
+- :mod:`drift.bore_state`, :mod:`drift.thermal` (the air and wall along the bore; the heat
+  balance of the played bore that gives them)
 - :mod:`drift.pitch` (playing frequencies for a bore state)
 - jobs: :mod:`drift.chart`, :mod:`drift.warmup`, :mod:`drift.layout`, :mod:`drift.advice`
 - edge: :mod:`drift.render`, :mod:`drift.cli`, and this package's public API.
@@ -45,7 +46,7 @@ _API = {
     "air_properties": "air",
     "AirState": "air",
     "GasProperties": "air",
-    "BoreProfile": "thermal",
+    "BoreProfile": "bore_state",
     "find_resonances": "pitch",
     "Resonances": "pitch",
     "drift_chart": "chart",

@@ -16,6 +16,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from drift import pitch, thermal
+from drift.bore_state import BoreProfile
 from drift.instrument import Instrument
 from drift.scale import cents, equal_temperament_hz
 from drift.errors import DriftError
@@ -53,7 +54,7 @@ def _profile(instrument: Instrument, profile):
     return thermal.design_profile(instrument) if profile is None else profile
 
 
-def deviations(instrument: Instrument, profile: thermal.BoreProfile | None = None, **kwargs) -> np.ndarray:
+def deviations(instrument: Instrument, profile: BoreProfile | None = None, **kwargs) -> np.ndarray:
     """Deviation [cent] of every named note from equal temperament at the design A4.
 
     ``profile`` defaults to the design condition (:func:`drift.thermal.design_profile`); NaN
@@ -64,7 +65,7 @@ def deviations(instrument: Instrument, profile: thermal.BoreProfile | None = Non
     return np.where(np.isfinite(dev), dev, 1200.0)
 
 
-def place_holes(instrument: Instrument, order, profile: thermal.BoreProfile | None = None, diameters_m=None,
+def place_holes(instrument: Instrument, order, profile: BoreProfile | None = None, diameters_m=None,
                 search_m=(0.0, None)):
     """Starting layout: place holes one at a time, each tuning the note it first opens.
 
@@ -75,7 +76,7 @@ def place_holes(instrument: Instrument, order, profile: thermal.BoreProfile | No
         Holes in the order to place them (usually from the open end upwards) and, for each, the
         index of the note (register 1) it tunes: the fingering in which it is the highest open
         hole below the closed ones.
-    profile : drift.thermal.BoreProfile, optional
+    profile : drift.bore_state.BoreProfile, optional
         Default: the design condition.
     diameters_m : dict, optional
         Diameters to give the holes [m] before placing them.
@@ -129,7 +130,7 @@ def _move(instrument: Instrument, name, position_m=None, diameter_m=None):
     return instrument.with_holes(holes)
 
 
-def tune_layout(instrument: Instrument, profile: thermal.BoreProfile | None = None, holes=None,
+def tune_layout(instrument: Instrument, profile: BoreProfile | None = None, holes=None,
                 vary_diameters=True, diameter_bounds_m=None, position_bounds_m=None, length_change_at_m=None,
                 length_change_bounds_m=(-0.05, 0.05),
                 min_gap_m=2e-3, diameter_weight=0.02, max_nfev=60, verbose=0) -> LayoutResult:
@@ -139,7 +140,7 @@ def tune_layout(instrument: Instrument, profile: thermal.BoreProfile | None = No
     ----------
     instrument : drift.instrument.Instrument
         Starting layout; every named note is a target (register 1, 2, ... as in the file).
-    profile : drift.thermal.BoreProfile, optional
+    profile : drift.bore_state.BoreProfile, optional
         Bore air and wall of the design condition (default :func:`drift.thermal.design_profile`).
     holes : sequence of str, optional
         Holes to adjust (default: all).

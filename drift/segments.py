@@ -207,7 +207,7 @@ def expanded_segments(instrument: Instrument, wall_temperature_at,
     instrument : Instrument
     wall_temperature_at : callable or None
         Wall temperature [K] at positions [m] (for example
-        :meth:`drift.thermal.BoreProfile.wall_temperature_at`); None: no expansion.
+        :meth:`drift.bore_state.BoreProfile.wall_temperature_at`); None: no expansion.
     max_segment_m : float
         Longest segment [m].
 

@@ -32,9 +32,8 @@ Transfer, 6th ed. Wiley (Eqs. 3.27, 8.42b).
 
 from __future__ import annotations
 
-import functools
 import math
-from dataclasses import dataclass, field, fields
+from dataclasses import dataclass, field
 from typing import Sequence
 
 import numpy as np
@@ -46,86 +45,8 @@ from drift.climate import (DEFAULT_BREATH, Blowing, Breath, Climate, Phase, Room
 from drift.errors import OutOfRangeError
 from drift.heat_transfer import latent_heat_condensation, outer_coefficient, pipe_conductance
 from drift.instrument import Instrument
+from drift.bore_state import BoreProfile
 from drift.segments import Wall, instrument_wall
-
-# --------------------------------------------------------------------------------------------
-# The hand-off to the acoustics: air and wall along the bore
-# --------------------------------------------------------------------------------------------
-
-
-@dataclass(frozen=True)
-class BoreProfile:
-    """Air temperature, breath fraction and wall temperature sampled along a bore.
-
-    This is what the thermal layer hands to the acoustics layer. Values between samples are
-    interpolated linearly, and held constant beyond the first and last sample.
-
-    Attributes
-    ----------
-    room : Room
-    positions_m : ndarray (n,) [m] from the input end, ascending
-    temperature_k : ndarray (n,) air temperature [K]
-    breath_fraction : ndarray (n,) [0-1], mole fraction of breath in the bore air
-    wall_temperature_k : ndarray (n,) [K]
-    breath : Breath
-    """
-
-    room: Room
-    positions_m: np.ndarray
-    temperature_k: np.ndarray
-    breath_fraction: np.ndarray
-    wall_temperature_k: np.ndarray
-    breath: Breath = DEFAULT_BREATH
-
-    @classmethod
-    def uniform(cls, room: Room, breath_fraction: float = 0.0, breath: Breath = DEFAULT_BREATH):
-        """Air and wall at room temperature everywhere, with a uniform breath fraction."""
-        t = np.array([room.temperature_k])
-        return cls(room, np.array([0.0]), t, np.array([float(breath_fraction)]), t, breath)
-
-    def _interp(self, values, positions_m):
-        return np.interp(np.asarray(positions_m, dtype=float), self.positions_m, values)
-
-    def wall_temperature_at(self, positions_m):
-        """Wall temperature [K] at positions [m]."""
-        return self._interp(self.wall_temperature_k, positions_m)
-
-    @functools.cached_property
-    def sampled_air(self) -> air.AirState:
-        """The gas at the profile's own sample positions, through :func:`drift.air.air_state` (computed once)."""
-        return air.air_state(
-            self.temperature_k,
-            self.room.pressure_pa,
-            self.room.temperature_k,
-            self.room.relative_humidity,
-            self.room.co2_fraction,
-            np.clip(self.breath_fraction, 0.0, 1.0),
-            self.breath,
-        )
-
-    def air_at(self, positions_m) -> air.AirState:
-        """The gas (:class:`drift.air.AirState`) at positions [m] along the bore.
-
-        The real-gas state is computed once at the profile's samples (:attr:`sampled_air`) and its
-        temperature, composition and properties are interpolated linearly to ``positions_m``. The
-        properties are smooth in temperature and composition, so between samples a few
-        centimetres and a kelvin or two apart this differs from a fresh evaluation by far less
-        than the model's own uncertainty (tests/test_thermal.py bounds it), and moving positions (a
-        joint change, an expanded bore) costs no new CoolProp states.
-        """
-        x = np.asarray(positions_m, dtype=float)
-        s = self.sampled_air
-        if self.positions_m.size == 1:
-            def at(values):
-                return np.broadcast_to(np.asarray(values)[0], x.shape).copy()
-        else:
-            def at(values):
-                return np.interp(x, self.positions_m, values)
-        props = air.GasProperties(*(at(getattr(s.properties, f.name)) for f in fields(air.GasProperties)))
-        fractions = np.stack([at(s.mole_fractions[:, i]) for i in range(5)], axis=-1)
-        return air.AirState(at(s.temperature), at(s.pressure), fractions, at(s.condensed.astype(float)) > 0.5,
-                        props)
-
 
 # --------------------------------------------------------------------------------------------
 # The heat balance
@@ -246,6 +167,23 @@ class _Model:
         self.mean_share = np.ones(n)
         big = self.ntu > 1e-12
         self.mean_share[big] = (1.0 - self.decay[big]) / self.ntu[big]
+        # The flow passes segments inlet, inlet + 1, ... up to the first without flow (the share
+        # does not grow). Over them T_out,i = d_i T_out,i-1 + (1 - d_i) T_w,i with T_out,inlet-1 =
+        # T_in, a linear recurrence: T_out = W T_w + T_in D with W_ij = (1 - d_j) prod_{j<l<=i} d_l
+        # and D_i = prod_{l<=i} d_l, built here once (products only, no division).
+        stop = self.inlet
+        while stop < n and self.flows[stop]:
+            stop += 1
+        self.flow_run = slice(self.inlet, stop)
+        d = self.decay[self.flow_run]
+        self.outlet_weights = np.zeros((d.size, d.size))
+        self.outlet_offset = np.zeros(d.size)
+        for i in range(d.size):
+            product = 1.0
+            for j in range(i, -1, -1):
+                self.outlet_weights[i, j] = product * (1.0 - d[j])
+                product *= d[j]
+            self.outlet_offset[i] = product * self.t_in
 
     # -- pieces of the balance -----------------------------------------------------------------
 
@@ -258,7 +196,7 @@ class _Model:
         return np.exp(np.interp(t, self._t_grid, self._log_r_sat))
 
     def air_play(self, t_inner):
-        """The flowing air over inner-layer temperatures (n,) [K].
+        """The flowing air over inner-layer temperatures (k, n) [K], for k states at once.
 
         Segment by segment from the inlet, T_out = T_w + (T_in - T_w) exp(-NTU) with
         NTU = UA / (mdot cp) (uniform wall temperature over a segment; Incropera et al. 2007,
@@ -269,35 +207,34 @@ class _Model:
         Returns
         -------
         _AirFlow
+            Its arrays (k, n), its ``breath_heat_w`` (k,).
         """
         n = self.n
-        t_out = np.array(t_inner, dtype=float, copy=True)
-        t_mean = t_out.copy()
+        tw = np.asarray(t_inner, dtype=float)
+        t_out = tw.copy()
+        t_mean = tw.copy()
+        k = tw.shape[0]
         if self.inlet >= n:  # no flow at all
-            zero = np.zeros(n)
-            return _AirFlow(t_mean, np.full(n, np.nan), zero, zero, zero, 0.0)
-        t = self.t_in
-        decay, share, flows = self.decay.tolist(), self.mean_share.tolist(), self.flows.tolist()
-        tw = t_out.tolist()
-        for i in range(self.inlet, n):
-            if not flows[i]:
-                break  # the flow share does not grow: no flow from here on
-            t_mean[i] = tw[i] + (t - tw[i]) * share[i]
-            t = tw[i] + (t - tw[i]) * decay[i]
-            t_out[i] = t
-        t_up = np.concatenate([[self.t_in], t_out[:-1]])
-        t_up[self.inlet] = self.t_in
+            zero = np.zeros((k, n))
+            return _AirFlow(t_mean, np.full((k, n), np.nan), zero, zero, zero, np.zeros(k))
+        run = self.flow_run
+        t_out[:, run] = tw[:, run] @ self.outlet_weights.T + self.outlet_offset
+        t_before = np.concatenate([np.full((k, 1), self.t_in), t_out[:, run][:, :-1]], axis=1)
+        t_mean[:, run] = tw[:, run] + (t_before - tw[:, run]) * self.mean_share[run]
+        t_up = np.concatenate([np.full((k, 1), self.t_in), t_out[:, :-1]], axis=1)
+        t_up[:, self.inlet] = self.t_in
         sensible = np.where(self.flows, self.mdot_cp * (t_up - t_out), 0.0)
-        r_out = np.full(n, self.r_in)
-        r_out[self.flows] = np.minimum.accumulate(np.minimum(self.r_in, self.r_sat(t_out[self.flows])))
-        r_up = np.concatenate([[self.r_in], r_out[:-1]])
-        r_up[self.inlet] = self.r_in
+        r_out = np.full((k, n), self.r_in)
+        r_out[:, self.flows] = np.minimum.accumulate(np.minimum(self.r_in, self.r_sat(t_out[:, self.flows])),
+                                                     axis=1)
+        r_up = np.concatenate([np.full((k, 1), self.r_in), r_out[:, :-1]], axis=1)
+        r_up[:, self.inlet] = self.r_in
         condensed_kg = np.where(self.flows, self.ndot_dry * (r_up - r_out), 0.0) * K.WATER_MOLAR_MASS
         latent = condensed_kg * latent_heat_condensation(t_out)
-        inflow = self.mdot_cp[self.inlet] * self.t_in if self.inlet < n else 0.0
-        outflow = float(np.sum(self.exit_share * self.mdot_in * self.cp * np.where(self.flows, t_out, 0.0)))
+        inflow = self.mdot_cp[self.inlet] * self.t_in
+        outflow = np.sum(self.exit_share * self.mdot_in * self.cp * np.where(self.flows, t_out, 0.0), axis=1)
         return _AirFlow(t_mean, np.where(self.flows, t_out, np.nan), sensible + latent, latent, condensed_kg,
-                        inflow - outflow + float(np.sum(latent)))
+                        inflow - outflow + np.sum(latent, axis=1))
 
     def outer_conductance(self, t_outer):
         """Conductance from the outer layer to the room [W/K], per segment: wall conduction in
@@ -308,36 +245,59 @@ class _Model:
         return 1.0 / (self.r_outer + 1.0 / (h * self.outer_area))
 
     def heat_flows(self, temps, playing: bool) -> tuple[np.ndarray, _Balance]:
-        """Net heat into every wall node [W] (n, m), and the diagnostics of the balance."""
-        q = np.zeros((self.n, self.m))
+        """Net heat into every wall node [W] (k, n, m) of k states of the wall (k, n, m) [K] at
+        once, and the diagnostics of the balance (arrays with a first axis of k)."""
+        temps = np.asarray(temps, dtype=float)
+        k = temps.shape[0]
+        q = np.zeros((k, self.n, self.m))
         if playing:
-            a = self.air_play(temps[:, 0])
-            q[:, 0] += a.wall_w
+            a = self.air_play(temps[:, :, 0])
+            q[:, :, 0] += a.wall_w
             t_air, latent, cond, given, outlet = (a.air_k, a.latent_w, a.condensation_kg_s, a.breath_heat_w,
                                                   a.outlet_k)
         else:
-            t_air, latent, cond, given = temps[:, 0].copy(), np.zeros(self.n), np.zeros(self.n), 0.0
-            outlet = np.full(self.n, np.nan)
+            t_air, latent, cond, given = temps[:, :, 0].copy(), np.zeros((k, self.n)), np.zeros((k, self.n)), \
+                np.zeros(k)
+            outlet = np.full((k, self.n), np.nan)
         if self.m > 1:
-            f = self.g_radial * (temps[:, 1:] - temps[:, :-1])
+            f = self.g_radial * (temps[:, :, 1:] - temps[:, :, :-1])
+            q[:, :, :-1] += f
+            q[:, :, 1:] -= f
+        if self.n > 1:
+            f = self.g_axial * (temps[:, 1:] - temps[:, :-1])
             q[:, :-1] += f
             q[:, 1:] -= f
-        if self.n > 1:
-            f = self.g_axial * (temps[1:] - temps[:-1])
-            q[:-1] += f
-            q[1:] -= f
-        loss = self.outer_conductance(temps[:, -1]) * (temps[:, -1] - self.t_room)
-        q[:, -1] -= loss
-        return q, _Balance(t_air, given, float(np.sum(loss)), float(np.sum(latent)), float(np.sum(cond)),
+        loss = self.outer_conductance(temps[:, :, -1]) * (temps[:, :, -1] - self.t_room)
+        q[:, :, -1] -= loss
+        return q, _Balance(t_air, given, np.sum(loss, axis=1), np.sum(latent, axis=1), np.sum(cond, axis=1),
                            np.asarray(cond) > 0.0, outlet)
 
-    def rhs(self, playing: bool):
-        n, m, cap = self.n, self.m, self.capacity
+    def derivatives(self, y, playing: bool) -> np.ndarray:
+        """Time derivatives of the ODE state (k, n m + 2): wall temperatures [K/s], then the
+        rates of the two heat totals [W] (breath heat given up, heat lost to the room)."""
+        y = np.asarray(y, dtype=float)
+        q, d = self.heat_flows(y[:, : self.n * self.m].reshape(-1, self.n, self.m), playing)
+        return np.concatenate([(q / self.capacity).reshape(len(y), -1), d.breath_heat_w[:, None],
+                               d.room_loss_w[:, None]], axis=1)
 
+    def jacobian(self, y, playing: bool) -> np.ndarray:
+        """d(:meth:`derivatives`)/dy (n m + 2, n m + 2) at one state, by forward differences of
+        0.1 mK in every wall temperature, all evaluated in one batch (the heat totals enter
+        nothing, so their columns are zero)."""
+        y = np.asarray(y, dtype=float)
+        size = y.size
+        nodes = self.n * self.m
+        step = 1e-4
+        batch = np.repeat(y[None, :], nodes + 1, axis=0)
+        batch[np.arange(1, nodes + 1), np.arange(nodes)] += step
+        f = self.derivatives(batch, playing)
+        jac = np.zeros((size, size))
+        jac[:, :nodes] = ((f[1:] - f[0]) / step).T
+        return jac
+
+    def rhs(self, playing: bool):
         def f(_t, y):
-            temps = y[: n * m].reshape(n, m)
-            q, d = self.heat_flows(temps, playing)
-            return np.concatenate([(q / cap).ravel(), [d.breath_heat_w, d.room_loss_w]])
+            return self.derivatives(y[None, :], playing)[0]
 
         return f
 
@@ -395,14 +355,14 @@ class ThermalState:
 
 
 def _state(model: _Model, time_s, phase, temps, breath_fraction, totals=(0.0, 0.0)) -> ThermalState:
-    q, d = model.heat_flows(temps, phase == "play")
+    _, d = model.heat_flows(temps[None], phase == "play")
     wall_mean = np.sum(model.capacity * temps, axis=1) / np.sum(model.capacity, axis=1)
-    profile = BoreProfile(model.room, model.wall.positions_m.copy(), d.air_k,
-                              np.asarray(breath_fraction, dtype=float), wall_mean, model.breath)
-    return ThermalState(float(time_s), phase, profile, temps.copy(), d.breath_heat_w, d.room_loss_w,
-                        d.latent_w, d.condensation_kg_s, d.condensing, d.outlet_k,
-                        model.stored_j(temps),
-                        float(totals[0]), float(totals[1]))
+    profile = BoreProfile(model.room, model.wall.positions_m.copy(), d.air_k[0],
+                          np.asarray(breath_fraction, dtype=float), wall_mean, model.breath)
+    return ThermalState(float(time_s), phase, profile, temps.copy(), float(d.breath_heat_w[0]),
+                        float(d.room_loss_w[0]), float(d.latent_w[0]), float(d.condensation_kg_s[0]),
+                        d.condensing[0], d.outlet_k[0], model.stored_j(temps), float(totals[0]),
+                        float(totals[1]))
 
 
 def steady_state(wall: Wall, room: Room, blowing: Blowing, breath: Breath = DEFAULT_BREATH,
@@ -410,7 +370,8 @@ def steady_state(wall: Wall, room: Room, blowing: Blowing, breath: Breath = DEFA
     """The thermal state of a bore played long enough: wall heat balance at rest in time.
 
     Solves, for every wall node, 0 = (heat from the breath) + (conduction from neighbours) - (loss
-    to the room) with :func:`scipy.optimize.root` (Powell hybrid method), started from the room
+    to the room) with :func:`scipy.optimize.root` (Powell hybrid method, its Jacobian by forward
+    differences evaluated in one batch, :meth:`_Model.jacobian`), started from the room
     temperature; the residual is checked to 1e-9 W per node.
 
     Parameters
@@ -432,16 +393,22 @@ def steady_state(wall: Wall, room: Room, blowing: Blowing, breath: Breath = DEFA
     model = _Model(wall, room, blowing, breath, layers)
     shape = (model.n, model.m)
 
-    def residual(y):
-        return model.heat_flows(y.reshape(shape), True)[0].ravel()
+    nodes = model.n * model.m
+    capacity = model.capacity.ravel()
 
-    guess = np.full(model.n * model.m, room.temperature_k)
-    solution = root(residual, guess, method="hybr", options={"xtol": 1e-12})
+    def residual(y):
+        return model.heat_flows(y.reshape((1,) + shape), True)[0].ravel()
+
+    def jacobian(y):
+        return model.jacobian(np.concatenate([y, [0.0, 0.0]]), True)[:nodes, :nodes] * capacity[:, None]
+
+    guess = np.full(nodes, room.temperature_k)
+    solution = root(residual, guess, jac=jacobian, method="hybr", options={"xtol": 1e-12})
     worst = float(np.max(np.abs(residual(solution.x))))
     if not solution.success and worst > 1e-9:
         # Fall back on a long integration of the transient, then polish.
         y = _integrate(model, True, guess, 0.0, 4 * 3600.0).y[:-2, -1]
-        solution = root(residual, y, method="hybr", options={"xtol": 1e-12})
+        solution = root(residual, y, jac=jacobian, method="hybr", options={"xtol": 1e-12})
         worst = float(np.max(np.abs(residual(solution.x))))
         if worst > 1e-6:
             raise OutOfRangeError(f"the steady thermal state did not converge (residual {worst:.2g} W)")
@@ -457,6 +424,7 @@ def _integrate(model: _Model, playing: bool, y0, t0, t1):
     if y0.size == n_nodes:
         y0 = np.concatenate([y0, [0.0, 0.0]])
     sol = solve_ivp(model.rhs(playing), (t0, t1), y0, method="LSODA", dense_output=True,
+                    jac=lambda _t, y: model.jacobian(y, playing),
                     rtol=1e-7, atol=np.concatenate([np.full(n_nodes, 1e-6), [1e-3, 1e-3]]))
     if not sol.success:
         raise OutOfRangeError(f"the thermal integration failed: {sol.message}")

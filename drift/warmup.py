@@ -15,6 +15,7 @@ import numpy as np
 
 from drift import constants as K
 from drift import pitch, thermal
+from drift.bore_state import BoreProfile
 from drift.climate import DEFAULT_BREATH, Blowing, Breath, Phase, Room, parse_plan, plan_duration_s
 from drift.errors import OutOfRangeError
 from drift.instrument import Instrument
@@ -229,7 +230,7 @@ def settle_from_cold(instrument: Instrument, room: Room, steady_hz, tolerance_ce
 
 
 def warmup_timeline(instrument: Instrument, room: Room, plan: Sequence[Phase] | str, step_s: float = 30.0,
-                    breath: Breath = DEFAULT_BREATH, reference: thermal.BoreProfile | None = None,
+                    breath: Breath = DEFAULT_BREATH, reference: BoreProfile | None = None,
                     blowing: Blowing | None = None, tolerance_cents: float = 2.0, progress=None,
                     names: tuple[str, str] = ("", "")) -> Warmup:
     """The pitch of every note of an instrument over a play/rest plan, starting cold.
@@ -246,7 +247,7 @@ def warmup_timeline(instrument: Instrument, room: Room, plan: Sequence[Phase] | 
         Time between samples [s]; every phase boundary is sampled too.
     breath : drift.climate.Breath
         The player's breath.
-    reference : drift.thermal.BoreProfile, optional
+    reference : drift.bore_state.BoreProfile, optional
         Condition the drift is measured from (default: the instrument's design condition,
         :func:`drift.thermal.design_profile`).
     blowing : drift.climate.Blowing, optional

@@ -13,7 +13,7 @@ from drift import acoustics, pitch
 from drift.climate import Room
 from drift.instrument import Note, parse_instrument
 from drift.scale import cents
-from drift.thermal import BoreProfile
+from drift.bore_state import BoreProfile
 from references import propagation_keefe1984, transfer_matrices
 
 ROOM = Room(293.15, relative_humidity=0.0)

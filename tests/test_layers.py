@@ -18,7 +18,7 @@ LAYERS = {
     "data": ["scale", "materials", "climate", "instrument"],
     "physics": ["gas_table", "air", "heat_transfer", "acoustics"],
     "segments": ["segments"],
-    "thermal": ["thermal"],
+    "thermal": ["bore_state", "thermal"],
     "pitch": ["pitch"],
     "jobs": ["advice", "layout", "chart", "warmup"],
     "edge": ["render", "cli", "__main__", "__init__"],

@@ -11,7 +11,8 @@ from drift import pitch
 from drift.climate import Room
 from drift.instrument import load_instrument
 from drift.scale import cents, note_to_midi
-from drift.thermal import BoreProfile, design_profile
+from drift.bore_state import BoreProfile
+from drift.thermal import design_profile
 from references import nearest_note
 
 

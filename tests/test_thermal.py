@@ -12,7 +12,7 @@ from drift.climate import DEFAULT_BREATH, Blowing, Room, parse_climate, parse_pl
 from drift.errors import OutOfRangeError
 from drift.materials import material
 from drift.segments import Wall, flow_fraction_from_exits, wall_from_stations
-from drift.thermal import BoreProfile
+from drift.bore_state import BoreProfile
 
 ROOM = Room(293.15, 101325.0, 0.5)
 BRASS = material("yellow_brass")
