@@ -37,7 +37,11 @@ References
 
 from __future__ import annotations
 
+import bisect
 import dataclasses
+import functools
+import math
+import types
 
 import numpy as np
 
@@ -50,6 +54,9 @@ FLANGED_END_CORRECTION = 0.8216
 #: extent (common practice; measured values lie between the two, e.g. Dalmont et al. 2002,
 #: from memory).
 HOLE_OUTER_END_CORRECTION = 0.5 * (UNFLANGED_END_CORRECTION + FLANGED_END_CORRECTION)
+
+#: The fields of :class:`drift.air.GasProperties` the acoustics uses.
+AIR_FIELDS = ("sound_speed", "density", "viscosity", "conductivity", "cp", "gamma")
 
 #: Above this |argument|, the Zwikker-Kosten Bessel ratio uses its asymptotic series.
 _ASYMPTOTIC_FROM = 16.0
@@ -107,6 +114,37 @@ def bessel_ratio(z):
     return out
 
 
+#: On the ray z = sqrt(-j) r (r real), the Hankel series in u = 1/r (w^k = exp(j k pi/4) u^k), and
+#: the power series of J0(z) and 2 J1(z)/z in u = r^2/4 (-z^2/4 = j u; coefficients j^k/(k!)^2
+#: and j^k/(k! (k+1)!); 36 terms leave less than 1e-17 of the sum for r < 16), highest first.
+_RATIO_REAL = (_RATIO * np.exp(0.25j * np.pi * np.arange(len(_RATIO))))[::-1]
+_SMALL_SERIES = np.array([[[1j**k / math.factorial(k) ** 2], [1j**k / (math.factorial(k) * math.factorial(k + 1))]]
+                          for k in reversed(range(36))])
+
+
+def _horner(coefficients, u):
+    return functools.reduce(lambda acc, c: acc * u + c, coefficients[1:], coefficients[0])
+
+
+def _wall_ratio(r):
+    """F(sqrt(-j) r) = :func:`bessel_ratio` on the ray z = exp(-j pi/4) r, r >= 0 real [-].
+
+    The arguments of the Zwikker-Kosten model lie on this ray: below :data:`_ASYMPTOTIC_FROM`
+    the power series of J0 and J1 (Abramowitz & Stegun 1964, Eq. 9.1.10), beyond it the Hankel
+    series of :func:`bessel_ratio`, both summed by Horner's rule in a real variable (equal to
+    :func:`bessel_ratio` within 1e-13; fewer and cheaper operations)."""
+    r = np.asarray(r, dtype=float)
+    small = r < _ASYMPTOTIC_FROM
+    if not np.any(small):
+        return (-2j * np.exp(0.25j * np.pi)) * _horner(_RATIO_REAL, 1.0 / r) / r
+    out = np.empty(r.shape, dtype=complex)
+    j0, j1 = _horner(_SMALL_SERIES, 0.25 * r[small] ** 2)
+    out[small] = j1 / j0
+    if not np.all(small):
+        out[~small] = _wall_ratio(r[~small])
+    return out
+
+
 def propagation_zk(frequency_hz, radius_m, sound_speed, density, viscosity, conductivity, cp,
                    gamma, lossless: bool = False):
     """Propagation constant Gamma [1/m] and characteristic impedance Zc [Pa s/m^3] of a tube.
@@ -148,14 +186,12 @@ def propagation_zk(frequency_hz, radius_m, sound_speed, density, viscosity, cond
         return g + 0 * zc, zc
     shape = np.broadcast_shapes(omega.shape, a.shape, rho.shape, c.shape, np.shape(viscosity),
                                 np.shape(conductivity), np.shape(cp), np.shape(gamma))
-    minus_j = np.exp(-0.25j * np.pi)  # sqrt(-j)
     rv = a * np.sqrt(omega * rho / np.asarray(viscosity, dtype=float))
     rt = a * np.sqrt(omega * rho * np.asarray(cp, dtype=float) / np.asarray(conductivity, dtype=float))
-    fv = bessel_ratio(np.broadcast_to(minus_j * rv, shape))
-    ft = bessel_ratio(np.broadcast_to(minus_j * rt, shape))
-    z = 1j * omega * rho / s / (1.0 - fv)
-    y = 1j * omega * s / (rho * c**2) * (1.0 + (np.asarray(gamma, dtype=float) - 1.0) * ft)
-    return np.sqrt(z * y), np.sqrt(z / y)
+    fv, ft = _wall_ratio(np.stack([np.broadcast_to(rv, shape), np.broadcast_to(rt, shape)]))
+    # Z Y = -(omega/c)^2 y/z and Z/Y = (rho c/S)^2 / (z y), with z = 1 - F_v, y = 1 + (gamma-1) F_t
+    z, y = 1.0 - fv, 1.0 + (np.asarray(gamma, dtype=float) - 1.0) * ft
+    return np.sqrt((-(omega / c) ** 2) * (y / z)), (rho * c / s) / np.sqrt(z * y)
 
 
 def cylinder_matrix(gamma_prop, zc, length_m):
@@ -164,8 +200,8 @@ def cylinder_matrix(gamma_prop, zc, length_m):
     A = D = cosh(Gamma L), B = Zc sinh(Gamma L), C = sinh(Gamma L) / Zc (Keefe 1984 [2], Eq. 5, from memory;
     Chaigne & Kergomard 2016 [8], Sec. 5.5, from memory). det = A D - B C = 1 for any Gamma.
     """
-    gl = np.asarray(gamma_prop) * np.asarray(length_m)
-    ch, sh = np.cosh(gl), np.sinh(gl)
+    e = np.exp(np.asarray(gamma_prop) * np.asarray(length_m))
+    ch, sh = 0.5 * (e + 1.0 / e), 0.5 * (e - 1.0 / e)       # sinh to 1e-16 absolute: ample here
     return ch, zc * sh, sh / zc, ch
 
 
@@ -292,28 +328,29 @@ def hole_impedances(frequency_hz, hole_radius_m, bore_radius_m, chimney_m, props
     Parameters
     ----------
     frequency_hz : (N,) [Hz]
-    hole_radius_m, bore_radius_m, chimney_m : (H,) [m]
-    props : object with arrays (H,) sound_speed, density, viscosity, conductivity, cp, gamma
-    outer_correction_m : (H,) [m] or None
+    hole_radius_m, bore_radius_m, chimney_m : (H,) or (H, N) [m]
+        One value per hole, or per hole and frequency (several bore states at once).
+    props : object with arrays (H,) or (H, N) sound_speed, density, viscosity, conductivity, cp, gamma
+    outer_correction_m : (H,) or (H, N) [m] or None
         Outer end corrections replacing the default t_o.
 
     Returns
     -------
     zs_open, zs_closed, za_open, za_closed : ndarray (H, N) complex
     """
+    def col(v):  # (H,) -> (H, 1); (H, N) stays
+        return np.asarray(v, dtype=float)[:, None] if np.ndim(v) == 1 else np.asarray(v, dtype=float)
+
     f = np.asarray(frequency_hz, dtype=float)[None, :]
-    b = np.asarray(hole_radius_m, dtype=float)[:, None]
-    a = np.asarray(bore_radius_m, dtype=float)[:, None]
-    t = np.asarray(chimney_m, dtype=float)[:, None]
-    p = {k: np.asarray(getattr(props, k), dtype=float)[:, None]
-         for k in ("sound_speed", "density", "viscosity", "conductivity", "cp", "gamma")}
+    b, a, t = col(hole_radius_m), col(bore_radius_m), col(chimney_m)
+    p = {k: col(getattr(props, k)) for k in AIR_FIELDS}
     rho, c = p["density"], p["sound_speed"]
     omega = 2.0 * np.pi * f
     sh = np.pi * b**2
     ti, tao, tac = hole_corrections(b, a, t)
     g, zc = propagation_zk(f, b, **p, lossless=lossless)
     k = omega / c
-    to = HOLE_OUTER_END_CORRECTION * b if outer_correction_m is None else np.asarray(outer_correction_m)[:, None]
+    to = HOLE_OUTER_END_CORRECTION * b if outer_correction_m is None else col(outer_correction_m)
     zh = rho * c / sh
     zr = zh * (0.25 * (k * b) ** 2 * (0.0 if lossless else 1.0) + 1j * k * to)
     th = np.tanh(g * t)
@@ -331,106 +368,251 @@ def take_segments(props, index):
     return type(props)(*(np.asarray(getattr(props, f.name))[index] for f in dataclasses.fields(props)))
 
 
+def _product(p, q):
+    """The 2x2 matrix product p q of two (A, B, C, D) tuples of arrays."""
+    pa, pb, pc, pd = p
+    qa, qb, qc, qd = q
+    return pa * qa + pb * qc, pa * qb + pb * qd, pc * qa + pd * qc, pc * qb + pd * qd
+
+
 class Network:
     """A bore with its air, ready to give its input impedance at any frequencies.
 
     Build once per geometry and air (:class:`drift.segments.Segments` and a
     :class:`drift.air.GasProperties` of arrays with one entry per segment); then :meth:`impedance`
-    evaluates many frequencies and fingerings.
+    evaluates many frequencies and fingerings. :meth:`stack` joins several bore states of one
+    topology (the same segments and holes, each state with its own dimensions, for example
+    expanded by its own wall temperature, and its own air) into one network whose
+    :meth:`impedance` evaluates them all in one pass along the bore.
+
+    Attributes: ``seg`` and ``air``, the first state's Segments and GasProperties; ``n_states``
+    (1 unless built by :meth:`stack`); ``batched``, True for a network built by :meth:`stack`
+    (:meth:`impedance` then has a leading state axis).
     """
 
     def __init__(self, segments, segment_air, lossless: bool = False,
                  radiation: str = "norris-sheng-1989"):
-        self.seg = segments
-        self.air = segment_air
-        self.lossless = lossless
-        self.radiation = radiation
-        r_mean = 0.5 * (segments.radius_in_m + segments.radius_out_m)
-        self.r_mean = r_mean
-        self.is_cone = np.abs(segments.radius_out_m - segments.radius_in_m) > 1e-9 * r_mean
-        self.hole_air = take_segments(segment_air, segments.hole_segment) if len(segments.hole_segment) else None
-        self.n_holes = len(segments.hole_segment)
+        self.lossless, self.radiation, self.batched = lossless, radiation, False
+        self._build((segments,), (segment_air,))
+
+    @classmethod
+    def stack(cls, networks) -> "Network":
+        """One network of the bore states of ``networks`` (same topology, losses and radiation).
+
+        Raises ValueError when the networks differ in topology (:attr:`topology`), losses or
+        radiation model.
+        """
+        networks = list(networks)
+        first = networks[0]
+        if any((n.lossless, n.radiation) != (first.lossless, first.radiation) for n in networks):
+            raise ValueError("stacked networks must share their loss and radiation models")
+        net = cls.__new__(cls)
+        net.lossless, net.radiation, net.batched = first.lossless, first.radiation, True
+        net._build(tuple(s for n in networks for s in n.states_segments),
+                   tuple(a for n in networks for a in n.states_air))
+        return net
+
+    @property
+    def topology(self) -> tuple:
+        """What networks must share to be stacked: segment count, cavity, excitation, hole
+        segments and which segments are cones."""
+        s = self.seg
+        return (s.n, s.n_cavity, s.excitation, tuple(int(h) for h in s.hole_segment),
+                tuple(bool(c) for c in self.is_cone))
+
+    def _build(self, segments, airs):
+        s0 = segments[0]
+        self.seg, self.air = s0, airs[0]
+        self.states_segments, self.states_air = segments, airs
+        self.n_states = len(segments)
+
+        def stack(values):
+            return np.array([np.asarray(v, dtype=float) for v in values])
+
+        self._len = stack([s.length_m for s in segments])            # (B, n) [m]
+        self._r_in = stack([s.radius_in_m for s in segments])
+        self._r_out = stack([s.radius_out_m for s in segments])
+        self._r_mean = 0.5 * (self._r_in + self._r_out)
+        cone = np.abs(self._r_out - self._r_in) > 1e-9 * self._r_mean
+        self.r_mean, self.is_cone = self._r_mean[0], cone[0]
+        self._air = {k: stack([getattr(a, k) for a in airs]) for k in AIR_FIELDS}
+        hs = np.asarray(s0.hole_segment, dtype=int)
+        self.n_holes = len(hs)
+        if np.any(cone != cone[0]) or any((s.n, s.n_cavity, s.excitation) != (s0.n, s0.n_cavity, s0.excitation)
+                                          or not np.array_equal(s.hole_segment, hs) for s in segments[1:]):
+            raise ValueError("stacked bore states must share their segments, holes and cones")
+        self._hole = {k: stack([getattr(s, k) for s in segments])
+                      for k in ("hole_radius_m", "hole_chimney_m", "hole_bore_radius_m")}
+        self._hole_air = {k: v[:, hs] for k, v in self._air.items()}
+        self.hole_air = take_segments(airs[0], hs) if self.n_holes else None
+        self._volume = stack([s.added_volume_m3 for s in segments])
+        self._emb_radius = stack([s.embouchure_radius_m for s in segments])
+        self._emb_chimney = stack([s.embouchure_chimney_m for s in segments])
+        self._emb_outer = stack([HOLE_OUTER_END_CORRECTION * s.embouchure_radius_m if s.embouchure_outer_correction_m
+                                 is None else s.embouchure_outer_correction_m for s in segments])
         # holes sitting at the start of each segment
-        self.holes_at = [[] for _ in range(segments.n)]
-        for h, s in enumerate(segments.hole_segment):
+        self.holes_at = [[] for _ in range(s0.n)]
+        for h, s in enumerate(hs):
             self.holes_at[int(s)].append(h)
 
-    def _matrices(self, f):
-        """(A, B, C, D) of every segment, each (n, N)."""
-        s, air = self.seg, self.air
-        col = lambda v: np.asarray(v)[:, None]
-        g, zc = propagation_zk(f[None, :], col(self.r_mean), col(air.sound_speed), col(air.density),
-                               col(air.viscosity), col(air.conductivity), col(air.cp), col(air.gamma),
-                               lossless=self.lossless)
-        a, b, c, d = cylinder_matrix(g, zc, col(s.length_m))
-        if np.any(self.is_cone):
-            i = self.is_cone
-            ca, cb, cc, cd = cone_matrix(g[i], zc[i], col(s.radius_in_m[i]), col(s.radius_out_m[i]),
-                                         col(s.length_m[i]))
-            a, b, c, d = a.copy(), b.copy(), c.copy(), d.copy()
-            a[i], b[i], c[i], d[i] = ca, cb, cc, cd
-        return a, b, c, d
+    def resonance_spacing_hz(self) -> np.ndarray:
+        """c / 2L [Hz] per state, the spacing of the resonances of the whole closed bore: L every
+        segment plus the input's added volume as bore of the input's cross-section, c the lowest
+        speed of sound along the bore (a shorter air column spaces its resonances wider)."""
+        extra = self._volume / (np.pi * self._r_in[:, self.seg.n_cavity] ** 2)
+        return self._air["sound_speed"].min(axis=1) / (2.0 * (self._len.sum(axis=1) + extra))
 
-    def impedance(self, frequency_hz, open_holes=None, paired: bool = False):
+    def _point_matrices(self, state, f):
+        """(A, B, C, D) of every segment, each (n, P), for state[p] at frequency f[p]."""
+        def col(v):
+            return v[state].T
+
+        air = {k: col(v) for k, v in self._air.items()}
+        g, zc = propagation_zk(f[None, :], col(self._r_mean), **air, lossless=self.lossless)
+        length = col(self._len)
+        cone = self.is_cone
+        if not np.any(cone):
+            return cylinder_matrix(g, zc, length)
+        out = [np.empty(g.shape, dtype=complex) for _ in range(4)]
+        for where, values in ((~cone, cylinder_matrix(g[~cone], zc[~cone], length[~cone])),
+                              (cone, cone_matrix(g[cone], zc[cone], col(self._r_in)[cone], col(self._r_out)[cone],
+                                                 length[cone]))):
+            for m, v in zip(out, values):
+                m[where] = v
+        return tuple(out)
+
+    def impedance(self, frequency_hz, open_holes=None, paired: bool = False, state=None):
         """Input impedance [Pa s/m^3] at the input end (reed, lips) or as seen by the jet.
 
         Parameters
         ----------
-        frequency_hz : (N,) [Hz]
+        frequency_hz : (N,) [Hz], or (B, N) for a stacked network of B states
         open_holes : bool array (F, H) or None (all open)
             True where a hole is open. With ``paired`` False, every fingering is evaluated at
-            every frequency: result (F, N). With ``paired`` True, row i of ``open_holes`` goes
-            with frequency i: (N, H) -> result (N,).
+            every frequency: result (F, N), or (B, F, N) for a stacked network (each state at
+            its own row of ``frequency_hz``, or all at one (N,) row). With ``paired`` True, row i
+            of ``open_holes`` goes with frequency i: (N, H) -> result (N,).
+        state : (N,) int, optional
+            With ``paired``: the bore state of each frequency (default 0; required when the
+            network holds several states).
 
         Notes
         -----
         Z is propagated from the radiation load at the open end to the input through every
         segment (Z <- (A Z + B)/(C Z + D)) and every hole (Z <- Za/2 + 1/(1/Zs + 1/(Z + Za/2))).
-        Reed and lips: a compliance j omega V/(rho c^2) in parallel at the input (the reed's
-        equivalent volume, or the lip cup). Jet: the embouchure hole's chimney (with inner and
-        outer end corrections, :func:`hole_impedances`) loads the parallel combination of the
-        stopped cavity and the bore, and its outer radiation impedance is in series; the minima
-        of this impedance are the jet's resonances (Fletcher & Rossing 1998 [9], Sec. 16.3).
+        Unpaired, with several fingerings, the closed bore above each fingering's first open
+        hole is common to them: its matrix product (a closed hole as the matrix [[1 + Za Ys/2,
+        Za (1 + Za Ys/4)], [Ys, 1 + Za Ys/2]], Ys = 1/Zs) is formed once per frequency and each
+        fingering propagated only up to its first open hole (:meth:`_shared_upper_bore`). All
+        states and frequencies go through one loop over the segments. Reed and lips: a
+        compliance j omega V/(rho c^2) in parallel at the input (the reed's equivalent volume,
+        or the lip cup). Jet: the embouchure hole's chimney (with inner and outer end
+        corrections, :func:`hole_impedances`) loads the parallel combination of the stopped
+        cavity and the bore, and its outer radiation impedance is in series; the minima of this
+        impedance are the jet's resonances (Fletcher & Rossing 1998 [9], Sec. 16.3).
         """
-        f = np.atleast_1d(np.asarray(frequency_hz, dtype=float))
-        seg, air = self.seg, self.air
         nh = self.n_holes
-        if open_holes is None:
-            open_holes = np.ones((1 if not paired else len(f), nh), dtype=bool)
-        open_holes = np.asarray(open_holes, dtype=bool)
-        if open_holes.ndim != 2 or open_holes.shape[1] != nh:
+        if paired:
+            f = np.atleast_1d(np.asarray(frequency_hz, dtype=float))
+            if state is None and self.n_states > 1:
+                raise ValueError("a paired evaluation of several bore states needs their state indices")
+            st = np.zeros(f.shape, dtype=int) if state is None else np.broadcast_to(np.asarray(state, dtype=int), f.shape)
+            rows = np.ones((len(f), nh), dtype=bool) if open_holes is None else np.asarray(open_holes, dtype=bool)
+            if rows.shape != (len(f), nh):
+                raise ValueError(f"open_holes must have shape ({len(f)}, {nh})")
+            return self._evaluate(st, f, rows, paired=True)
+        f = np.asarray(frequency_hz, dtype=float)
+        b = self.n_states
+        f = np.broadcast_to(f, (b, f.shape[-1])) if self.batched else np.atleast_1d(f)[None, :]
+        rows = np.ones((1, nh), dtype=bool) if open_holes is None else np.asarray(open_holes, dtype=bool)
+        if rows.ndim != 2 or rows.shape[1] != nh:
             raise ValueError(f"open_holes must have shape (F, {nh})")
-        a, b, c, d = self._matrices(f)
-        last = seg.n - 1
-        zr = radiation_unflanged(f, seg.radius_out_m[last], air.sound_speed[last], air.density[last],
+        n = f.shape[1]
+        z = self._evaluate(np.repeat(np.arange(f.shape[0]), n), f.ravel(), rows, paired=False)
+        return z.reshape(len(rows), f.shape[0], n).transpose(1, 0, 2) if self.batched else z
+
+    def _evaluate(self, st, f, rows, paired):
+        if not paired and len(rows) == 1:        # one fingering: nothing to share
+            return self._evaluate(st, f, np.broadcast_to(rows, (len(f), self.n_holes)), True)[None]
+        seg = self.seg
+        last, n_cav = seg.n - 1, seg.n_cavity
+        a, b, c, d = self._point_matrices(st, f)
+        air = self._air
+        zr = radiation_unflanged(f, self._r_out[st, last], air["sound_speed"][st, last], air["density"][st, last],
                                  "levine-schwinger-1948" if self.lossless and self.radiation != "ideal"
                                  else self.radiation)
         if self.lossless:
             zr = 1j * zr.imag
-        shape = (len(f),) if paired else (open_holes.shape[0], len(f))
-        z = np.broadcast_to(zr, shape).astype(complex)
-        if nh:
-            zso, zsc, zao, zac = hole_impedances(f, seg.hole_radius_m, seg.hole_bore_radius_m,
-                                                 seg.hole_chimney_m, self.hole_air, self.lossless)
-        for i in range(last, seg.n_cavity - 1, -1):
-            z = (a[i] * z + b[i]) / (c[i] * z + d[i])
-            for h in self.holes_at[i]:
-                is_open = open_holes[:, h] if paired else open_holes[:, h][:, None]
-                zs = np.where(is_open, zso[h], zsc[h])
-                za = 0.5 * np.where(is_open, zao[h], zac[h])
-                with np.errstate(divide="ignore", invalid="ignore"):
-                    ys = np.where(np.isinf(zs), 0.0, 1.0 / zs)
-                z = za + 1.0 / (ys + 1.0 / (z + za))
-        i0 = seg.n_cavity
-        rho0, c0 = air.density[i0], air.sound_speed[i0]
+        if self.n_holes:
+            hole_air = types.SimpleNamespace(**{k: v[st].T for k, v in self._hole_air.items()})
+            zso, zsc, zao, zac = hole_impedances(f, self._hole["hole_radius_m"][st].T,
+                                                 self._hole["hole_bore_radius_m"][st].T,
+                                                 self._hole["hole_chimney_m"][st].T, hole_air, self.lossless)
+            zao, zac = 0.5 * zao, 0.5 * zac                  # half series impedances
+            with np.errstate(divide="ignore", invalid="ignore"):
+                yso, ysc = 1.0 / zso, np.where(np.isinf(zsc), 0.0, 1.0 / zsc)
+        if paired:
+            if self.n_holes:
+                ys, za = np.where(rows.T, yso, ysc), np.where(rows.T, zao, zac)
+            z = zr.astype(complex)
+            for i in range(last, n_cav - 1, -1):
+                z = (a[i] * z + b[i]) / (c[i] * z + d[i])
+                for h in self.holes_at[i]:
+                    z = za[h] + 1.0 / (ys[h] + 1.0 / (z + za[h]))
+        else:
+            z = self._shared_upper_bore(rows, f, zr, (a, b, c, d),
+                                        (yso, ysc, zao, zac) if self.n_holes else None)
+        i0 = n_cav
+        rho0, c0 = air["density"][st, i0], air["sound_speed"][st, i0]
         omega = 2.0 * np.pi * f
         if seg.excitation in ("reed", "lips"):
-            y_vol = 1j * omega * seg.added_volume_m3 / (rho0 * c0**2)
+            y_vol = 1j * omega * self._volume[st] / (rho0 * c0**2)
             return 1.0 / (1.0 / z + y_vol)
-        return self._jet(f, z, a, b, c, d)
+        return self._jet(st, f, z, a, b, c, d)
 
-    def _jet(self, f, z_bore, a, b, c, d):
-        seg, air = self.seg, self.air
+    def _shared_upper_bore(self, rows, f, zr, matrices, holes):
+        """Z (F, P) of fingerings ``rows`` (F, H) at frequencies f (P,): each from the open end up
+        to its first open hole, then through the closed bore above it as one matrix product,
+        formed once per frequency for all fingerings (down to where at least three fingerings
+        still use it; the others go on with the propagation of Z)."""
+        seg = self.seg
+        last, n_cav = seg.n - 1, seg.n_cavity
+        a, b, c, d = matrices
+        hs = np.asarray(seg.hole_segment, dtype=int)
+        first = np.where(rows, hs[None, :], last + 1).min(axis=1) if self.n_holes else np.full(len(rows), last + 1)
+        order = np.argsort(first, kind="stable")
+        # the shared product reaches segment m: the third-highest first open hole
+        m = int(np.sort(first)[-min(3, len(first))])
+        first = [max(n_cav, min(int(v), m)) for v in first[order]]
+        ordered = rows[order]
+        z = np.empty((len(rows), len(f)), dtype=complex)
+        z[:] = zr
+        for i in range(last, first[0] - 1, -1):
+            k = bisect.bisect_right(first, i)      # rows still below their first open hole
+            zk = (a[i] * z[:k] + b[i]) / (c[i] * z[:k] + d[i])
+            for h in self.holes_at[i]:
+                is_open = ordered[:k, h][:, None]
+                ys, za = np.where(is_open, holes[0][h], holes[1][h]), np.where(is_open, holes[2][h], holes[3][h])
+                zk = za + 1.0 / (ys + 1.0 / (zk + za))
+            z[:k] = zk
+        product = None
+        for i in range(n_cav, first[-1] + 1):
+            lo, hi = bisect.bisect_left(first, i), bisect.bisect_right(first, i)
+            if hi > lo and product is not None:
+                pa, pb, pc, pd = product
+                z[lo:hi] = (pa * z[lo:hi] + pb) / (pc * z[lo:hi] + pd)
+            if i == first[-1]:
+                break
+            step = (a[i], b[i], c[i], d[i])
+            for h in self.holes_at[i]:                                     # closed
+                ys, za = holes[1][h], holes[3][h]
+                ah = 1.0 + za * ys
+                step = _product((ah, za * (1.0 + ah), ys, ah), step)
+            product = step if product is None else _product(product, step)
+        return z[np.argsort(order, kind="stable")]
+
+    def _jet(self, st, f, z_bore, a, b, c, d):
+        seg, air = self.seg, self._air
         i0 = seg.n_cavity
         # cavity seen from the embouchure: from the stopped end (U = 0) back to the embouchure;
         # a reversed segment swaps A and D.
@@ -442,22 +624,18 @@ class Network:
         with np.errstate(divide="ignore", invalid="ignore"):
             y_total = y + 1.0 / z_bore
         z_par = 1.0 / y_total
-        a_bore = seg.radius_in_m[i0]
-        be = seg.embouchure_radius_m
-        te = seg.embouchure_chimney_m
-        ti, _, _ = hole_corrections(be, a_bore, max(te, 1e-6))
-        rho, c0 = float(air.density[i0]), float(air.sound_speed[i0])
+        a_bore = self._r_in[st, i0]
+        be, te = self._emb_radius[st], self._emb_chimney[st]
+        ti, _, _ = hole_corrections(be, a_bore, np.maximum(te, 1e-6))
+        props = {k: v[st, i0] for k, v in air.items()}
+        rho, c0 = props["density"], props["sound_speed"]
         omega = 2.0 * np.pi * f
         se = np.pi * be**2
-        g, zc = propagation_zk(f, be, air.sound_speed[i0], air.density[i0], air.viscosity[i0],
-                               air.conductivity[i0], air.cp[i0], air.gamma[i0], lossless=self.lossless)
+        g, zc = propagation_zk(f, be, **props, lossless=self.lossless)
         ca, cb, cc, cd = cylinder_matrix(g, zc, te)
         load = z_par + 1j * omega * rho * ti / se
         z_hole = (ca * load + cb) / (cc * load + cd)
-        to = seg.embouchure_outer_correction_m
-        if to is None:
-            to = HOLE_OUTER_END_CORRECTION * be
         k = omega / c0
         zh = rho * c0 / se
-        z_out = zh * (0.25 * (k * be) ** 2 * (0.0 if self.lossless else 1.0) + 1j * k * to)
+        z_out = zh * (0.25 * (k * be) ** 2 * (0.0 if self.lossless else 1.0) + 1j * k * self._emb_outer[st])
         return z_hole + z_out

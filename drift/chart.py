@@ -16,6 +16,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from drift import pitch, thermal
+from drift.bore_state import BoreProfile
 from drift.climate import Climate, Player
 from drift.constants import A4_HZ, TOLERANCE_CENTS
 from drift.errors import DriftError, OutOfRangeError
@@ -84,7 +85,7 @@ def design_climate(instrument: Instrument) -> Climate:
                    description=f"design condition of {instrument.name}")
 
 
-def frequencies(instrument: Instrument, profile: thermal.BoreProfile) -> np.ndarray:
+def frequencies(instrument: Instrument, profile: BoreProfile) -> np.ndarray:
     """Playing frequency [Hz] of every note of the instrument with the bore air of ``profile``."""
     return np.array([n.frequency_hz for n in pitch.note_frequencies(instrument, profile)])
 
@@ -95,69 +96,189 @@ def _free_joint(instrument: Instrument) -> Instrument:
         instrument.tuning, min_change_m=-SEARCH_LIMIT_M, max_change_m=SEARCH_LIMIT_M))
 
 
-def joint_change(instrument: Instrument, profile: thermal.BoreProfile, reference_hz: np.ndarray,
+#: The joint change is found to this [m] (1 um, about 0.003 cent): the last secant correction is below it.
+JOINT_XTOL_M = 1e-6
+#: Secant steps without a change of sign before the solver stops looking.
+_MAX_UNBRACKETED = 12
+
+
+def joint_change(instrument: Instrument, profile: BoreProfile, reference_hz: np.ndarray,
                  drift_cents: np.ndarray | None = None) -> float:
     """The joint change [m] that brings the mean drift of all notes against ``reference_hz`` to zero.
 
-    Solved with Brent's method (scipy.optimize.brentq) on the mean drift of the instrument with
-    the changed bore (:meth:`drift.instrument.Instrument.with_joint_change`), recomputed at every step,
-    within +-:data:`SEARCH_LIMIT_M`. The bore's temperature profile is held as computed for the
-    unchanged instrument: a few millimetres of tube more or less move the profile negligibly.
-    ``drift_cents``, the notes' drift with the joint unchanged, saves recomputing it when known.
-    Raises :class:`OutOfRangeError` when no change within the search range centres the notes.
+    Parameters
+    ----------
+    instrument : drift.instrument.Instrument
+        With a tuning joint.
+    profile : drift.bore_state.BoreProfile
+        The bore state, held as computed for the unchanged instrument: a few millimetres of tube
+        more or less move the profile negligibly.
+    reference_hz : ndarray [Hz]
+        Each note's frequency at the reference.
+    drift_cents : ndarray [cent], optional
+        The notes' drift with the joint unchanged; saves recomputing it when known.
+
+    Returns
+    -------
+    float [m]; > 0 pulls the joint out.
+
+    Raises
+    ------
+    drift.errors.OutOfRangeError
+        When no change within +-:data:`SEARCH_LIMIT_M` centres the notes.
+
+    Notes
+    -----
+    Secant steps on the mean drift of the instrument with the changed bore
+    (:meth:`drift.instrument.Instrument.with_joint_change`), recomputed at every step
+    (:func:`joint_changes`).
     """
-    from scipy.optimize import brentq
+    if drift_cents is None:
+        drift_cents = cents(frequencies(_free_joint(instrument), profile), reference_hz)
+    (result,) = joint_changes(instrument, [profile], reference_hz, [drift_cents])
+    if isinstance(result, OutOfRangeError):
+        raise result
+    return result[0]
 
+
+def joint_changes(instrument: Instrument, profiles, reference_hz: np.ndarray, drifts) -> list:
+    """The joint change that centres the notes in each of several bore states, solved together.
+
+    Parameters
+    ----------
+    instrument : drift.instrument.Instrument
+        With a tuning joint.
+    profiles : sequence of drift.bore_state.BoreProfile
+    reference_hz : ndarray [Hz]
+        Each note's frequency at the reference.
+    drifts : sequence of ndarray [cent]
+        Each state's drift of the notes against ``reference_hz`` with the joint unchanged.
+
+    Returns
+    -------
+    list, per state: (change [m], the notes' frequencies [Hz] with that change), or the
+    :class:`drift.errors.OutOfRangeError` saying that no change within
+    +-:data:`SEARCH_LIMIT_M` centres the notes.
+
+    Notes
+    -----
+    The mean drift d(delta) [cent] is close to linear in the change delta (pitch ~ 1/L), so
+    secant steps delta <- delta - d (delta - delta_prev) / (d - d_prev) converge in a few
+    recomputations. The first step is delta_1 = L (2^(d_0/1200) - 1) (L the bore length, at
+    least 0.2 mm). Once two points bracket the root the secant is kept inside the bracket
+    (bisection when it would leave it); without a bracket a step is held within
+    +-:data:`SEARCH_LIMIT_M`, and a change the bore cannot take (it would cut a hole) halves
+    the step instead. The returned change is the last one computed; the solve stops when the
+    next correction is below :data:`JOINT_XTOL_M` (1 um; the error of a secant iterate is
+    of the order of that correction). All states advance together, their notes recomputed
+    in one batched search per step (:func:`drift.pitch.state_frequencies`).
+    """
     free = _free_joint(instrument)
-
-    known = {} if drift_cents is None else {0.0: float(np.nanmean(drift_cents))}
-
-    def mean_drift(delta_m):
-        # Brent's method asks again for the bracket ends found below: serve them from ``known``.
-        if delta_m not in known:
-            f = frequencies(free.with_joint_change(delta_m), profile)
-            known[delta_m] = float(np.nanmean(cents(f, reference_hz)))
-        return known[delta_m]
-
-    start = mean_drift(0.0)
-    if start == 0.0:
-        return 0.0
-    # A first step from the length of the bore (pitch ~ 1/L), then widen until the sign changes.
-    step = math.copysign(max(abs(instrument.length_m * (2 ** (start / 1200) - 1)), 2e-4), start)
-    a, fa = 0.0, start
+    no_root = OutOfRangeError(
+        f"{instrument.name}: no joint change within ±{SEARCH_LIMIT_M * 1e3:g} mm centres the notes")
+    n = len(profiles)
+    points = [[] for _ in range(n)]      # (change, mean drift, frequencies), as computed
+    walls = [[-SEARCH_LIMIT_M - 1e-12, SEARCH_LIMIT_M + 1e-12] for _ in range(n)]
+    result: list = [None] * n
+    trial: list = [None] * n
+    for k in range(n):
+        start = float(np.nanmean(drifts[k])) if np.any(np.isfinite(drifts[k])) else math.nan
+        f0 = reference_hz * 2.0 ** (np.asarray(drifts[k], dtype=float) / 1200.0)
+        if start == 0.0:
+            result[k] = (0.0, f0)
+        elif not math.isfinite(start):
+            result[k] = no_root
+        else:
+            points[k].append((0.0, start, f0))
+            step = math.copysign(max(abs(instrument.length_m * (2 ** (start / 1200) - 1)), 2e-4), start)
+            trial[k] = max(-SEARCH_LIMIT_M, min(SEARCH_LIMIT_M, step))
     while True:
-        b = max(-SEARCH_LIMIT_M, min(SEARCH_LIMIT_M, a + step))
-        try:
-            fb = mean_drift(b)
-        except OutOfRangeError:
-            fb = math.nan
-        if math.isfinite(fb) and fb * fa <= 0:
-            return float(brentq(mean_drift, min(a, b), max(a, b), xtol=1e-6))
-        if not math.isfinite(fb) or abs(b) >= SEARCH_LIMIT_M:
-            raise OutOfRangeError(
-                f"{instrument.name}: no joint change within ±{SEARCH_LIMIT_M * 1e3:g} mm centres the notes"
-            )
-        a, fa, step = b, fb, step * 2
+        todo = [k for k in range(n) if result[k] is None]
+        if not todo:
+            return result
+        changed, ok = [], []
+        for k in todo:
+            try:
+                changed.append(free.with_joint_change(trial[k]))
+                ok.append(k)
+            except OutOfRangeError:
+                _failed(walls[k], points[k], trial[k])
+        for k, f in zip(ok, pitch.state_frequencies(changed, [profiles[k] for k in ok])):
+            mean = float(np.nanmean(cents(f, reference_hz))) if np.any(np.isfinite(f)) else math.nan
+            if math.isfinite(mean):
+                points[k].append((trial[k], mean, f))
+            else:
+                _failed(walls[k], points[k], trial[k])
+        for k in todo:
+            trial[k], result[k] = _next_change(points[k], walls[k], no_root)
 
 
-def _summary(instrument: Instrument, climate: Climate, profile, drift, reference_hz, names, tolerance) -> ClimateSummary:
+def _failed(walls, points, change):
+    """A change the bore could not take (or gave no notes) bounds the search on its side."""
+    if change > points[-1][0]:
+        walls[1] = min(walls[1], change)
+    else:
+        walls[0] = max(walls[0], change)
+
+
+def _next_change(points, walls, no_root):
+    """The next change to compute and, when solved, the result (see :func:`joint_changes`)."""
+    last = points[-1]
+    if last[1] == 0.0:
+        return None, (last[0], last[2])
+    ordered = sorted(points, key=lambda p: p[0])
+    bracket = next(((a, b) for a, b in zip(ordered[:-1], ordered[1:]) if a[1] * b[1] < 0), None)
+    guess = math.nan
+    if len(points) >= 2:
+        prev = points[-2]
+        if last[1] != prev[1]:
+            guess = last[0] - last[1] * (last[0] - prev[0]) / (last[1] - prev[1])
+    if bracket is not None:
+        (a, fa, _), (b, fb, _) = bracket
+        if b - a <= 2 * JOINT_XTOL_M:
+            best = min(bracket, key=lambda p: abs(p[1]))
+            return None, (best[0], best[2])
+        if not a < guess < b:
+            guess = 0.5 * (a + b)
+        if abs(guess - last[0]) <= JOINT_XTOL_M:
+            return None, (last[0], last[2])
+        return guess, None
+    if len(points) > _MAX_UNBRACKETED:
+        return None, no_root
+    low, high = walls
+    if not math.isfinite(guess) or (guess - last[0]) * last[1] <= 0:
+        # no usable secant (or it points the wrong way): double the last step
+        step = last[0] - points[-2][0] if len(points) >= 2 else 2e-4
+        guess = last[0] + 2.0 * math.copysign(abs(step), last[1])
+    if abs(guess - last[0]) <= JOINT_XTOL_M:
+        return None, (last[0], last[2])
+    if not low < guess < high:
+        wall = high if guess > last[0] else low
+        if abs(wall) > SEARCH_LIMIT_M:      # the search range's own end: try it exactly
+            guess = math.copysign(SEARCH_LIMIT_M, wall)
+        else:                                # a change the bore cannot take: halve the step
+            guess = 0.5 * (last[0] + wall)
+        if abs(guess - last[0]) <= JOINT_XTOL_M:
+            return None, no_root
+    return guess, None
+
+
+def _summary(instrument: Instrument, climate: Climate, drift, solved, reference_hz, names,
+             tolerance) -> ClimateSummary:
     warning = None
     adjust_m = None
     adjusted = drift
     if instrument.tuning is None:
         warning = "the instrument has no tuning joint; the drift stands as shown"
+    elif isinstance(solved, OutOfRangeError):
+        warning = str(solved)
     else:
-        try:
-            adjust_m = joint_change(instrument, profile, reference_hz, drift)
-        except OutOfRangeError as error:
-            warning = str(error)
-        if adjust_m is not None:
-            adjusted = cents(frequencies(_free_joint(instrument).with_joint_change(adjust_m), profile),
-                              reference_hz)
-            t = instrument.tuning
-            if not t.min_change_m <= adjust_m <= t.max_change_m:
-                warning = (f"the needed change of {adjust_m * 1e3:+.1f} mm exceeds what the joint allows "
-                           f"({t.min_change_m * 1e3:+.1f} to {t.max_change_m * 1e3:+.1f} mm)")
+        adjust_m, f = solved
+        adjusted = cents(f, reference_hz)
+        t = instrument.tuning
+        if not t.min_change_m <= adjust_m <= t.max_change_m:
+            warning = (f"the needed change of {adjust_m * 1e3:+.1f} mm exceeds what the joint allows "
+                       f"({t.min_change_m * 1e3:+.1f} to {t.max_change_m * 1e3:+.1f} mm)")
     return ClimateSummary(
         climate=climate.name,
         mean_drift_cents=float(np.nanmean(drift)),
@@ -187,7 +308,8 @@ def drift_chart(instrument: Instrument, climates: list[Climate], reference: Clim
     tolerance_cents : float
         Notes whose drift after the joint change exceeds this [cent] are listed.
     progress : callable, optional
-        Called with no argument after each climate is done (and once for the reference).
+        Called with no argument after each climate's bore state is computed (and once for the
+        reference's).
 
     Returns
     -------
@@ -203,9 +325,11 @@ def drift_chart(instrument: Instrument, climates: list[Climate], reference: Clim
 
     Notes
     -----
-    Each climate's bore state comes from :func:`drift.thermal.climate_profile`, each note's
-    frequency from :func:`drift.pitch.note_frequencies`; the joint change from
-    :func:`joint_change`.
+    Each climate's bore state comes from :func:`drift.thermal.climate_profile`; the notes of
+    all of them (and of the reference) are searched together
+    (:func:`drift.pitch.state_frequencies`, the same frequencies as
+    :func:`drift.pitch.note_frequencies`), and the joint changes of all climates are solved
+    together (:func:`joint_changes`).
 
     Examples
     --------
@@ -219,19 +343,20 @@ def drift_chart(instrument: Instrument, climates: list[Climate], reference: Clim
     reference = reference or design_climate(instrument)
     names = [n.name for n in instrument.notes]
     equal = np.array([equal_temperament_hz(n, a4_hz) for n in names])
-    reference_hz = frequencies(instrument, thermal.climate_profile(instrument, reference))
-    if progress:
-        progress()
+    profiles = []
+    for c in [reference, *climates]:
+        profiles.append(thermal.climate_profile(instrument, c))
+        if progress:
+            progress()
+    reference_hz, *found = pitch.state_frequencies([instrument] * len(profiles), profiles)
+    drifts = [cents(f, reference_hz) for f in found]
+    solved = (joint_changes(instrument, profiles[1:], reference_hz, drifts) if instrument.tuning is not None
+              else [None] * len(climates))
     rows, summary = [], []
-    for c in climates:
-        profile = thermal.climate_profile(instrument, c)
-        f = frequencies(instrument, profile)
-        drift = cents(f, reference_hz)
+    for c, f, drift, fix in zip(climates, found, drifts, solved):
         offset = cents(f, equal)
         for note, value, d, o in zip(instrument.notes, f, drift, offset):
             rows.append(DriftRow(note.name, note.register, c.name, float(value), float(d), float(o)))
-        summary.append(_summary(instrument, c, profile, drift, reference_hz, names, tolerance_cents))
-        if progress:
-            progress()
+        summary.append(_summary(instrument, c, drift, fix, reference_hz, names, tolerance_cents))
     return Chart(instrument.name, a4_hz, reference.name, tolerance_cents, [c.name for c in climates],
                  names, rows, summary)

@@ -281,3 +281,17 @@ def pipe_warmup(tmp_path_factory):
                     "--output", output)
     return SimpleNamespace(pipe=pipe, output=output, result=result,
                            doc=json.loads(output.read_text(encoding="utf-8")))
+
+
+def load_pitch_reference():
+    """bench/bench_pitch.py as a module: its ``reference_*`` functions are the straightforward
+    search (25-cent grid, Chandrupatla refinement, Brent joint change) the fast search is checked
+    against, two implementations of the same model."""
+    import importlib.util
+    from pathlib import Path
+
+    path = Path(__file__).resolve().parents[1] / "bench" / "bench_pitch.py"
+    spec = importlib.util.spec_from_file_location("bench_pitch_reference", path)
+    module = importlib.util.module_from_spec(spec)
+    spec.loader.exec_module(module)
+    return module

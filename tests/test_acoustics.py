@@ -9,8 +9,8 @@ from scipy import special
 from scipy.optimize import brentq
 
 from conftest import make_instrument as make
-from drift import acoustics, pitch
-from drift.climate import Room
+from drift import acoustics, instrument, pitch, thermal
+from drift.climate import Room, bundled_climates
 from drift.instrument import Note, parse_instrument
 from drift.scale import cents
 from drift.bore_state import BoreProfile
@@ -216,3 +216,53 @@ def test_lip_mouthpiece_and_reed_volume_lower_the_resonances():
     lips = parse_instrument({"name": "l", "excitation": "lips", "bore": {"stations_mm": tube}}, "l.toml")
     brass = first(lips, count=3)
     assert np.all(reed < plain) and np.all(brass < plain)
+
+
+def test_zwikker_kosten_against_scipy_bessel_functions(room_air):
+    # The propagation constant and characteristic impedance written out here from the
+    # Zwikker-Kosten model as given by Keefe (1984), Eqs. 1-4 (from memory), with
+    # scipy.special.jv (an independent library) for the Bessel functions: radii from 0.5 to 10 mm
+    # and 20 Hz to 8 kHz cover both branches of the model's own evaluation.
+    p = {k: float(getattr(room_air, k)[0]) for k in acoustics.AIR_FIELDS}
+    f = np.geomspace(20.0, 8000.0, 25)[None, :]
+    a = np.array([0.0005, 0.001, 0.003, 0.0075, 0.01])[:, None]
+    w, rho, c = 2 * np.pi * f, p["density"], p["sound_speed"]
+    s = np.pi * a**2
+
+    def wall(k):
+        z = k * a
+        return 2 * special.jv(1, z) / (z * special.jv(0, z))
+
+    fv = wall(np.sqrt(-1j * w * rho / p["viscosity"]))
+    ft = wall(np.sqrt(-1j * w * rho * p["cp"] / p["conductivity"]))
+    z = 1j * w * rho / s / (1 - fv)
+    y = 1j * w * s / (rho * c**2) * (1 + (p["gamma"] - 1) * ft)
+    g, zc = acoustics.propagation_zk(f, a, **p)
+    assert np.allclose(g, np.sqrt(z * y), rtol=1e-9, atol=0)
+    assert np.allclose(zc, np.sqrt(z / y), rtol=1e-9, atol=0)
+
+
+def test_stacked_states_give_each_state_own_impedance():
+    ins = instrument.load_instrument("conical-reed")
+    profiles = [thermal.climate_profile(ins, c) for c in bundled_climates()[:3]]
+    nets = [pitch.bore_network(ins, p) for p in profiles]
+    both = acoustics.Network.stack(nets)
+    f = np.linspace(60.0, 3000.0, 40)
+    mask = ins.open_mask()
+    z = both.impedance(f, mask)
+    assert z.shape == (3, len(mask), len(f))
+    for k, net in enumerate(nets):
+        assert np.allclose(z[k], net.impedance(f, mask), rtol=1e-12, atol=0)
+        rows = mask[np.arange(len(f)) % len(mask)]
+        paired = both.impedance(f, rows, paired=True, state=np.full(len(f), k))
+        assert np.allclose(paired, net.impedance(f, rows, paired=True), rtol=1e-12, atol=0)
+        # the shared upper bore (all fingerings) against one fingering at a time
+        for i in (0, 5, len(mask) - 1):
+            assert np.allclose(z[k, i], net.impedance(f, mask[i:i + 1])[0], rtol=1e-12, atol=0)
+
+
+def test_stacking_needs_one_topology():
+    a = pitch.bore_network(make([[0, 10], [600, 10]]), PROFILE)
+    b = pitch.bore_network(make([[0, 10], [700, 10]]), PROFILE)
+    with pytest.raises(ValueError):
+        acoustics.Network.stack([a, b])

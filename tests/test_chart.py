@@ -5,8 +5,14 @@ import math
 import numpy as np
 import pytest
 
+from conftest import load_pitch_reference
+from conftest import make_instrument as make
 from drift import chart, thermal
-from drift.climate import Climate, Player, Room
+from drift.instrument import load_instrument
+from drift.bore_state import BoreProfile
+from drift.errors import OutOfRangeError
+from drift.scale import cents
+from drift.climate import Climate, Player, Room, load_climate
 from drift.constants import ZERO_CELSIUS
 from drift.instrument import DEFAULT_INSTRUMENT
 from references import cramer_sound_speed, davis_water_fraction
@@ -133,3 +139,34 @@ def test_without_a_joint_the_drift_stands(two_hole_pipe):
     # the default reference is the design condition, here at rest at 20 °C and 50 % RH
     assert chart.design_climate(pipe).name == "design"
     assert chart.design_climate(pipe).player.playing is False
+
+
+REFERENCE = load_pitch_reference()
+
+
+def test_secant_joint_change_matches_brent():
+    # Two solvers on the same mean drift (not an outside check): the secant steps against
+    # Brent's method of the reference, each to 1 um; they must agree within 0.01 mm.
+    ins = load_instrument("cylindrical-reed")
+    reference_hz = chart.frequencies(ins, thermal.climate_profile(ins, chart.design_climate(ins)))
+    for name in ("winter-church", "lit-stage"):
+        profile = thermal.climate_profile(ins, load_climate(name))
+        drift = cents(chart.frequencies(ins, profile), reference_hz)
+        new = chart.joint_change(ins, profile, reference_hz, drift)
+        old = REFERENCE.reference_joint_change(ins, profile, reference_hz, drift)
+        assert abs(new) > 1e-4 and abs(new - old) < 1e-5, (name, new, old)
+
+
+def test_joint_change_out_of_reach_raises_the_same_error():
+    # A 1.2 m cylinder with its joint 100 mm from the input, played at -20 °C against a 40 °C
+    # reference: c falls by about 10 % (c ~ sqrt(T), any acoustics text), so the column would
+    # have to shrink by about 110 mm, beyond the 60 mm search range.
+    ins = make([[0, 14], [1200, 14]], tuning={"position_mm": 100.0, "min_change_mm": -2.0, "max_change_mm": 2.0},
+               note=[{"name": "C2", "closed": []}])
+    reference_hz = chart.frequencies(ins, BoreProfile.uniform(Room(313.15)))
+    cold = BoreProfile.uniform(Room(253.15))
+    with pytest.raises(OutOfRangeError, match="no joint change within ±60 mm centres the notes"):
+        chart.joint_change(ins, cold, reference_hz)
+    with pytest.raises(OutOfRangeError, match="no joint change within ±60 mm centres the notes"):
+        REFERENCE.reference_joint_change(ins, cold, reference_hz,
+                                         cents(chart.frequencies(ins, cold), reference_hz))
