@@ -89,31 +89,6 @@ def _series_ratio(num: np.ndarray, den: np.ndarray) -> np.ndarray:
 _RATIO = _series_ratio(_hankel_series(1, 14), _hankel_series(0, 14))
 
 
-def bessel_ratio(z):
-    """F(z) = 2 J1(z) / (z J0(z)) for complex z with Im z <= 0 [-].
-
-    The Zwikker-Kosten wall function [1] (Chaigne & Kergomard 2016 [8], Eq. 5.137, from
-    memory). Evaluated with exponentially scaled Bessel functions (``scipy.special.jve``) for
-    |z| < 16, and beyond it with the 14-term Hankel asymptotic series of J1/J0 (Abramowitz &
-    Stegun 1964, Eq. 9.2.7), whose relative error there is below 1e-9 (the neglected part is of
-    order exp(-sqrt2 |z|)).
-    """
-    from scipy import special
-
-    z = np.asarray(z, dtype=complex)
-    out = np.empty(z.shape, dtype=complex)
-    small = np.abs(z) < _ASYMPTOTIC_FROM
-    if np.any(small):
-        zs = z[small]
-        out[small] = 2.0 * special.jve(1, zs) / (zs * special.jve(0, zs))
-    if not np.all(small):
-        zl = z[~small]
-        w = 1.0 / zl
-        series = np.polyval(_RATIO[::-1], w)
-        out[~small] = -2j * series * w
-    return out
-
-
 #: On the ray z = sqrt(-j) r (r real), the Hankel series in u = 1/r (w^k = exp(j k pi/4) u^k), and
 #: the power series of J0(z) and 2 J1(z)/z in u = r^2/4 (-z^2/4 = j u; coefficients j^k/(k!)^2
 #: and j^k/(k! (k+1)!); 36 terms leave less than 1e-17 of the sum for r < 16), highest first.
@@ -127,12 +102,14 @@ def _horner(coefficients, u):
 
 
 def _wall_ratio(r):
-    """F(sqrt(-j) r) = :func:`bessel_ratio` on the ray z = exp(-j pi/4) r, r >= 0 real [-].
+    """The Zwikker-Kosten wall function F(z) = 2 J1(z) / (z J0(z)) [1] on the ray
+    z = exp(-j pi/4) r, r >= 0 real, where the model's arguments lie [-].
 
-    The arguments of the Zwikker-Kosten model lie on this ray: below :data:`_ASYMPTOTIC_FROM`
-    the power series of J0 and J1 (Abramowitz & Stegun 1964, Eq. 9.1.10), beyond it the Hankel
-    series of :func:`bessel_ratio`, both summed by Horner's rule in a real variable (equal to
-    :func:`bessel_ratio` within 1e-13; fewer and cheaper operations)."""
+    Below :data:`_ASYMPTOTIC_FROM` the power series of J0 and J1 (Abramowitz & Stegun 1964,
+    Eq. 9.1.10); beyond it the 14-term Hankel asymptotic series of J1/J0 (Eq. 9.2.7), whose
+    relative error there is below 1e-9 (the neglected part is of order exp(-sqrt2 r)); both
+    summed by Horner's rule in a real variable. tests/test_acoustics.py checks it against
+    ``scipy.special.jv``."""
     r = np.asarray(r, dtype=float)
     small = r < _ASYMPTOTIC_FROM
     if not np.any(small):
@@ -155,7 +132,7 @@ def propagation_zk(frequency_hz, radius_m, sound_speed, density, viscosity, cond
         Z = j omega rho / S / (1 - F(k_v a)),   k_v^2 = -j omega rho / eta
         Y = j omega S / (rho c^2) (1 + (gamma - 1) F(k_t a)),   k_t^2 = -j omega rho cp / kappa
 
-    with F(z) = 2 J1(z)/(z J0(z)) (:func:`bessel_ratio`), S = pi a^2; then Gamma = sqrt(Z Y) and
+    with F(z) = 2 J1(z)/(z J0(z)) (:func:`_wall_ratio`), S = pi a^2; then Gamma = sqrt(Z Y) and
     Zc = sqrt(Z / Y). Lossless: Gamma = j omega / c, Zc = rho c / S.
 
     Parameters

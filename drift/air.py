@@ -61,18 +61,19 @@ def property_source() -> str:
 
 
 @functools.cache
-def _liquid_spline(source: str):
-    """Cubic spline of ln p_sat over liquid water, 0 to 100 °C every 0.25 K, through IAPWS-95
-    values from CoolProp: stored in the gas table (``"table"``) or computed now (``"coolprop"``).
-    Between the nodes it reproduces CoolProp to better than 1e-7 relative (tests/test_air.py)."""
-    from scipy.interpolate import CubicSpline
-
+def _liquid_spline(source: str) -> tuple[np.ndarray, np.ndarray]:
+    """The cubic spline (not-a-knot ends) of ln p_sat over liquid water through IAPWS-95 values
+    from CoolProp, 0 to 100 °C every 0.25 K: its knots [K] (n,) and polynomial pieces (4, n - 1)
+    in powers of (T - knot), highest first. Stored in the gas table (``"table"``, no scipy needed)
+    or fitted now (``"coolprop"``). Between the nodes it reproduces CoolProp to better than 1e-7
+    relative (tests/test_air.py)."""
     if source == "table":
         from drift.gas_table import _table
 
         table = _table()
-        return CubicSpline(table["liquid_t_k"], table["ln_p_sat_liquid_pa"])
+        return table["liquid_t_k"], table["ln_p_sat_liquid_pieces"]
     import CoolProp.CoolProp as CP
+    from scipy.interpolate import CubicSpline
 
     water = CP.AbstractState("HEOS", "Water")
     grid = np.linspace(K.ZERO_CELSIUS, K.ZERO_CELSIUS + 100.0, 401)
@@ -80,7 +81,17 @@ def _liquid_spline(source: str):
     for t in grid:
         water.update(CP.QT_INPUTS, 0.0, float(t))
         values.append(water.p())
-    return CubicSpline(grid, np.log(values))
+    return grid, CubicSpline(grid, np.log(values)).c
+
+
+def _ln_liquid_saturation(temperature_k):
+    """ln p_sat [ln Pa] over liquid water from :func:`_liquid_spline` (held constant in slope
+    beyond its ends, which the callers never reach)."""
+    knots, pieces = _liquid_spline(_source[0])
+    t = np.asarray(temperature_k, dtype=float)
+    i = np.clip(np.searchsorted(knots, t, side="right") - 1, 0, knots.size - 2)
+    dx = t - knots[i]
+    return ((pieces[0, i] * dx + pieces[1, i]) * dx + pieces[2, i]) * dx + pieces[3, i]
 
 
 def sublimation_pressure(temperature_k):
@@ -107,7 +118,7 @@ def saturation_vapour_pressure(temperature_k):
     cold = flat < K.ZERO_CELSIUS
     out[cold] = sublimation_pressure(flat[cold])
     if np.any(~cold):
-        out[~cold] = np.exp(_liquid_spline(_source[0])(flat[~cold]))
+        out[~cold] = np.exp(_ln_liquid_saturation(flat[~cold]))
     return out.reshape(t.shape)
 
 

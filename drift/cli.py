@@ -260,8 +260,8 @@ def warmup_command(instrument, climate_name, plan_text, step_s, reference_name, 
     # Profiles to evaluate: the samples, the reference, the steady state, and about 20 for the
     # settle-time search.
     # Bore states searched: the reference and the steady state, about 20 knots per phase, and
-    # about 15 for the settle time from cold (an estimate; the bar stops at its end).
-    progress = LazyProgress(2 + 20 * len(plan) + 15, "computing")
+    # about 32 for the settle time from cold (an estimate; the bar stops at its end).
+    progress = LazyProgress(2 + 20 * len(plan) + 32, "computing")
     try:
         result = warmup.warmup_timeline(inst, room, plan, step_s, breath, reference, progress=progress,
                                         names=(climate_label, reference_label))

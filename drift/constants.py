@@ -69,6 +69,9 @@ A4_HZ = 440.0
 #: Default "in tune" threshold [cent] (common practice: about 5 cents is where ensemble players
 #: start to hear beating against a held reference).
 TOLERANCE_CENTS = 5.0
+#: Band around the steady state of playing [cent] within which the pitch counts as settled
+#: (common practice: a couple of cents is below what a player corrects by ear in a held note).
+SETTLE_CENTS = 2.0
 #: Longest segment of a discretised bore [m], acoustic and thermal: short enough to follow a
 #: temperature profile along the bore.
 SEGMENT_LENGTH_M = 0.02

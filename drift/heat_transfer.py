@@ -23,16 +23,24 @@ import numpy as np
 from drift import constants as K
 
 
+#: Width [K] below 0 °C over which condensing water turns from liquid to frost in
+#: :func:`latent_heat_condensation`.
+FROST_BAND_K = 0.1
+
+
 def latent_heat_condensation(temperature_k):
     """Heat released per kg of water vapour condensing [J/kg] at temperature [K].
 
     Above 0 °C, vapour to liquid: L_v = 2.501e6 - 2369 (T - 273.15) J/kg (Rogers & Yau 1989).
     Below 0 °C, vapour to ice: L_v + L_f with L_f = 333.6 kJ/kg, matching the air layer, which caps
-    water at saturation over ice there.
+    water at saturation over ice there. The fusion heat is ramped in linearly over the
+    :data:`FROST_BAND_K` just below 0 °C, so that the heat balance stays continuous and a steady
+    state exists when the bore air sits at the freezing point (a regularisation, not physics:
+    it moves no state outside that band).
     """
     t = np.asarray(temperature_k, dtype=float)
     latent = K.LATENT_HEAT_0C + K.LATENT_HEAT_SLOPE * (t - K.ZERO_CELSIUS)
-    return np.where(t < K.ZERO_CELSIUS, latent + K.LATENT_HEAT_FUSION, latent)
+    return latent + K.LATENT_HEAT_FUSION * np.clip((K.ZERO_CELSIUS - t) / FROST_BAND_K, 0.0, 1.0)
 
 
 def nusselt_hausen_1943(graetz):

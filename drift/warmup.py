@@ -111,6 +111,10 @@ def sample_times(plan: Sequence[Phase], step_s: float) -> np.ndarray:
 
 #: Longest continuous playing searched for a settle time [s] (10 h).
 SETTLE_SEARCH_S = K.LONGEST_PLAN_S
+#: Times [s] at which the settle search from cold first looks: 5 s, then every factor sqrt(2), to
+#: 10 h.
+SETTLE_GRID_S = 5.0 * np.sqrt(2.0) ** np.arange(26)
+SETTLE_GRID_S = np.append(SETTLE_GRID_S[SETTLE_GRID_S < SETTLE_SEARCH_S], SETTLE_SEARCH_S)
 #: Largest difference [cent] between a note's interpolated pitch and a full resonance search at
 #: the rows checked; knots are added until every check passes (:func:`phase_pitch`).
 KNOT_TOLERANCE_CENTS = 0.02
@@ -119,10 +123,48 @@ KNOT_TOLERANCE_CENTS = 0.02
 FIRST_KNOTS = (0.0, 1 / 64, 1 / 16, 1 / 4, 1 / 2, 1.0)
 
 
-def frequencies_hz(instrument: Instrument, profiles, notes) -> np.ndarray:
-    """Playing frequency [Hz] of each note (columns) in each bore state (rows)."""
-    return np.array([[r.frequency_hz for r in pitch.note_frequencies(instrument, p, notes=notes)]
-                     for p in profiles]).reshape(len(profiles), len(notes))
+def frequencies_hz(instrument: Instrument, profiles) -> np.ndarray:
+    """Playing frequency [Hz] of each fingering (columns) in each bore state (rows), all states
+    searched together (:func:`drift.pitch.state_frequencies`)."""
+    found = pitch.state_frequencies([instrument] * len(profiles), list(profiles))
+    return np.array(found).reshape(len(profiles), len(instrument.fingerings()))
+
+
+def pchip(x, y, x_new) -> np.ndarray:
+    """Monotone piecewise-cubic Hermite interpolation of ``y`` (n, ...) at ``x`` (n,) ascending,
+    evaluated at ``x_new``.
+
+    Fritsch & Carlson (1980), SIAM J. Numer. Anal. 17, 238-246, with the slopes of Fritsch &
+    Butland (1984): at an interior knot the weighted harmonic mean of the neighbouring secants
+    (zero where they differ in sign), at the ends the one-sided three-point formula limited to
+    keep the shape. These are the rules of ``scipy.interpolate.PchipInterpolator``, written here so
+    that a warm-up does not import scipy's interpolation package (tests compare the two).
+    """
+    x = np.asarray(x, dtype=float)
+    y = np.asarray(y, dtype=float)
+    h = np.diff(x)
+    m = np.diff(y, axis=0) / h.reshape((-1,) + (1,) * (y.ndim - 1))
+    d = np.zeros_like(y)
+    if x.size == 2:
+        d[:] = m[0]
+    else:
+        hs = h.reshape((-1,) + (1,) * (y.ndim - 1))
+        w1, w2 = 2 * hs[1:] + hs[:-1], hs[1:] + 2 * hs[:-1]
+        same = (np.sign(m[:-1]) == np.sign(m[1:])) & (m[:-1] != 0) & (m[1:] != 0)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            mean = (w1 + w2) / (w1 / m[:-1] + w2 / m[1:])
+        d[1:-1] = np.where(same, mean, 0.0)
+        for end, h0, h1, m0, m1 in ((0, h[0], h[1], m[0], m[1]), (-1, h[-1], h[-2], m[-1], m[-2])):
+            edge = ((2 * h0 + h1) * m0 - h0 * m1) / (h0 + h1)
+            edge = np.where(np.sign(edge) != np.sign(m0), 0.0, edge)
+            edge = np.where((np.sign(m0) != np.sign(m1)) & (np.abs(edge) > 3 * np.abs(m0)), 3 * m0, edge)
+            d[end] = edge
+    q = np.asarray(x_new, dtype=float)
+    i = np.clip(np.searchsorted(x, q, side="right") - 1, 0, x.size - 2)
+    span = h[i].reshape((-1,) + (1,) * (y.ndim - 1))
+    t = ((q - x[i]) / h[i]).reshape(span.shape)
+    return ((2 * t**3 - 3 * t**2 + 1) * y[i] + (t**3 - 2 * t**2 + t) * span * d[i]
+            + (-2 * t**3 + 3 * t**2) * y[i + 1] + (t**3 - t**2) * span * d[i + 1])
 
 
 def phase_pitch(pitch_at, start_s: float, times_s, tolerance_cents: float = KNOT_TOLERANCE_CENTS,
@@ -148,15 +190,12 @@ def phase_pitch(pitch_at, start_s: float, times_s, tolerance_cents: float = KNOT
     -----
     The knots are the phase's start and some of ``times_s``: first the times nearest to
     :data:`FIRST_KNOTS` of the phase and the last one. log2 f of each note is interpolated
-    between knots by a monotone piecewise cubic (Fritsch & Carlson 1980,
-    ``scipy.interpolate.PchipInterpolator``). Then the middle time of every gap between knots is
+    between knots by a monotone piecewise cubic (:func:`pchip`). Then the middle time of every gap between knots is
     searched in full and compared with the interpolation without it; each gap whose middle
     misses by more than ``tolerance_cents`` is split there and its halves checked the same way.
     Every time searched becomes a knot, so no more than ``len(times_s) + 1`` states are ever
     searched, and a time that is a knot gets its searched value. Where a search finds no resonance for a register (NaN), every time is searched.
     """
-    from scipy.interpolate import PchipInterpolator
-
     times = np.asarray(times_s, dtype=float)
     # The knot grid: the phase's start (unless it is the first time wanted), then the times.
     lead = 0 if times[0] <= start_s else 1
@@ -181,7 +220,7 @@ def phase_pitch(pitch_at, start_s: float, times_s, tolerance_cents: float = KNOT
     pending = [(a, b) for a, b in zip(knots[:-1], knots[1:]) if b - a > 1]
     while pending and np.all(np.isfinite(known[knots])):
         middles = np.array([(a + b) // 2 for a, b in pending])
-        guess = PchipInterpolator(grid[knots], known[knots], axis=0)(grid[middles])
+        guess = pchip(grid[knots], known[knots], grid[middles])
         found = search(middles)
         miss = np.max(np.abs(guess - found), axis=1) * 1200.0
         knots = sorted(set(knots) | set(middles.tolist()))
@@ -194,44 +233,64 @@ def phase_pitch(pitch_at, start_s: float, times_s, tolerance_cents: float = KNOT
         return 2.0 ** known[lead:]
     if len(knots) == 1:
         return 2.0 ** known[knots]
-    return 2.0 ** PchipInterpolator(grid[knots], known[knots], axis=0)(times)
+    return 2.0 ** pchip(grid[knots], known[knots], times)
 
 
-def settle_from_cold(instrument: Instrument, room: Room, steady_hz, tolerance_cents: float = 2.0,
+def settle_from_cold(instrument: Instrument, room: Room, steady_hz, tolerance_cents: float = K.SETTLE_CENTS,
                      breath: Breath = DEFAULT_BREATH, blowing: Blowing | None = None,
-                     notes=None, progress=None, resolution_s: float = 5.0) -> float | None:
+                     progress=None, resolution_s: float = 5.0) -> float | None:
     """Time [s] of continuous playing from a cold start until every note is within
     ``tolerance_cents`` of its steady-state frequency ``steady_hz`` [Hz].
 
-    Found by bracketed root finding (:func:`scipy.optimize.brentq`, to ``resolution_s``) on
-    g(t) = max over notes |1200 log2(f(t) / f_steady)| - tolerance, f(t) from the states of one
-    thermal trajectory of 10 h of playing (:class:`drift.thermal.Trajectory`). This assumes the
-    approach is monotone, as the wall temperatures are when warming from cold; returns 0 when the
-    first note is already inside and None when 10 h of playing do not reach the band.
+    The root of g(t) = max over notes |1200 log2(f(t) / f_steady)| - tolerance, f(t) from the
+    states of one thermal trajectory of 10 h of playing (:class:`drift.thermal.Trajectory`):
+    g is searched at :data:`SETTLE_GRID_S` (all those states in one stacked search) for the first
+    time it is no longer positive, and the root within that bracket is refined by the Illinois
+    variant of regula falsi (Dowell & Jarratt 1971, BIT 11, 168-174) to ``resolution_s``. This
+    assumes the approach is monotone, as the wall temperatures are when warming from cold;
+    returns 0 when the first note is already inside and None when 10 h of playing do not reach
+    the band.
     """
-    from scipy.optimize import brentq
-
-    notes = instrument.fingerings() if notes is None else tuple(notes)
     steady_hz = np.asarray(steady_hz, dtype=float)
     trajectory = thermal.instrument_trajectory(instrument, room, (Phase("play", SETTLE_SEARCH_S),), breath,
                                                blowing)
 
-    def gap(t):
-        f = frequencies_hz(instrument, [trajectory.state(float(t)).profile], notes)[0]
+    def gaps(times):
+        f = frequencies_hz(instrument, [trajectory.state(float(t)).profile for t in times])
         if progress is not None:
-            progress(1)
-        return float(np.nanmax(np.abs(cents(f, steady_hz)))) - tolerance_cents
+            progress(len(times))
+        return np.nanmax(np.abs(cents(f, steady_hz[None, :])), axis=1) - tolerance_cents
 
-    if gap(0.0) <= 0.0:
+    grid = np.concatenate([[0.0], SETTLE_GRID_S])
+    g = gaps(grid)
+    if g[0] <= 0.0:
         return 0.0
-    if gap(SETTLE_SEARCH_S) > 0.0:
+    inside = np.flatnonzero(g <= 0.0)
+    if inside.size == 0:
         return None
-    return float(brentq(gap, 0.0, SETTLE_SEARCH_S, xtol=resolution_s))
+    k = int(inside[0])
+    a, b, ga, gb = grid[k - 1], grid[k], g[k - 1], g[k]
+    side = 0
+    while b - a > resolution_s:
+        t = b - gb * (b - a) / (gb - ga)
+        t = min(max(t, a + 0.1 * resolution_s), b - 0.1 * resolution_s)
+        gt = float(gaps([t])[0])
+        if gt > 0.0:
+            a, ga = t, gt
+            if side == -1:
+                gb *= 0.5
+            side = -1
+        else:
+            b, gb = t, gt
+            if side == 1:
+                ga *= 0.5
+            side = 1
+    return float(b - gb * (b - a) / (gb - ga))
 
 
 def warmup_timeline(instrument: Instrument, room: Room, plan: Sequence[Phase] | str, step_s: float = 30.0,
                     breath: Breath = DEFAULT_BREATH, reference: BoreProfile | None = None,
-                    blowing: Blowing | None = None, tolerance_cents: float = 2.0, progress=None,
+                    blowing: Blowing | None = None, tolerance_cents: float = K.SETTLE_CENTS, progress=None,
                     names: tuple[str, str] = ("", "")) -> Warmup:
     """The pitch of every note of an instrument over a play/rest plan, starting cold.
 
@@ -290,7 +349,7 @@ def warmup_timeline(instrument: Instrument, room: Room, plan: Sequence[Phase] | 
     notes = instrument.fingerings()
     labels = tuple(n.name if n.name else f"fingering {i + 1}" for i, n in enumerate(notes))
 
-    ref, steady_hz = frequencies_hz(instrument, [reference, steady.profile], notes)
+    ref, steady_hz = frequencies_hz(instrument, [reference, steady.profile])
     if progress is not None:
         progress(2)
     freqs = np.empty((len(times), len(notes)))
@@ -301,7 +360,7 @@ def warmup_timeline(instrument: Instrument, room: Room, plan: Sequence[Phase] | 
             continue
 
         def pitch_at(ts, index=index):
-            return frequencies_hz(instrument, [trajectory.state(t, index).profile for t in ts], notes)
+            return frequencies_hz(instrument, [trajectory.state(t, index).profile for t in ts])
 
         freqs[rows] = phase_pitch(pitch_at, trajectory.starts_s[index], times[rows], progress=progress)
     drift = cents(freqs, ref[None, :])
@@ -312,8 +371,7 @@ def warmup_timeline(instrument: Instrument, room: Room, plan: Sequence[Phase] | 
             inside = phase_of_row == index
             t = settle_time(times[inside], steady_cents[inside], np.zeros(len(notes)), tolerance_cents)
             settle.append((index, trajectory.starts_s[index], t))
-    from_cold = settle_from_cold(instrument, room, steady_hz, tolerance_cents, breath, blowing, notes,
-                                 progress)
+    from_cold = settle_from_cold(instrument, room, steady_hz, tolerance_cents, breath, blowing, progress)
     wall = instrument_wall(instrument)
     inlet = wall.positions_m[int(np.argmax(wall.flow_fraction > 0.0))]
     return Warmup(labels, times, states, freqs, ref, drift, steady_hz, steady, settle, tolerance_cents,

@@ -93,7 +93,7 @@ def test_interpolated_rows_agree_with_full_searches_at_every_row():
     room = inst.design.room()
     plan = parse_plan("play:4,rest:2,play:2")
     result = warmup.warmup_timeline(inst, room, plan, step_s=15.0)
-    full = warmup.frequencies_hz(inst, [s.profile for s in result.states], inst.fingerings())
+    full = np.array([[r.frequency_hz for r in pitch.note_frequencies(inst, s.profile)] for s in result.states])
     worst = np.max(np.abs(cents(result.frequencies_hz, full)))
     assert worst <= 0.05, worst
 
@@ -123,3 +123,16 @@ def test_phase_pitch_is_exact_at_knots_and_cheap():
     got = warmup.phase_pitch(pitch_at, 0.0, times)
     assert np.max(np.abs(cents(got, pitch_at(times)))) <= 0.05
     assert sum(calls[:-1]) < 40
+
+
+def test_pchip_matches_scipy():
+    # The warm-up's monotone cubic against scipy.interpolate.PchipInterpolator (an independent
+    # general-purpose library implementing Fritsch & Carlson 1980), on random and monotone data.
+    from scipy.interpolate import PchipInterpolator
+
+    rng = np.random.default_rng(7)
+    for n in (2, 3, 6, 15):
+        x = np.sort(rng.uniform(0.0, 100.0, n))
+        y = np.concatenate([rng.normal(size=(n, 2)), np.cumsum(rng.uniform(0, 1, (n, 1)), axis=0)], axis=1)
+        q = np.linspace(x[0], x[-1], 301)
+        np.testing.assert_allclose(warmup.pchip(x, y, q), PchipInterpolator(x, y, axis=0)(q), rtol=0, atol=1e-12)

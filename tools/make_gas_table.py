@@ -50,7 +50,7 @@ assert RES_O2[[0, -1]].tolist() == list(DOMAIN["o2_dry"])
 assert RES_CO2[[0, -1]].tolist() == list(DOMAIN["co2_dry"])
 ORDERS = {"t_k": 3, "p_pa": 2, "u": 3, "o2": 3, "co2": 2}
 #: Saturation pressure over liquid water, 0 to 100 °C every 0.25 K (IAPWS-95 through CoolProp):
-#: the nodes of drift.air's cubic spline of ln p_sat.
+#: the nodes of drift.air's cubic spline of ln p_sat (stored with the spline's pieces).
 LIQUID_T_K = np.linspace(K.ZERO_CELSIUS, K.ZERO_CELSIUS + 100.0, 401)
 #: Water limit: x_H2O <= WATER_LIMIT_FACTOR * p_sat(T) / p (covers the enhancement factor).
 WATER_LIMIT_FACTOR = 1.01
@@ -326,6 +326,11 @@ def main(argv=None):
     ln_limit = np.log(WATER_LIMIT_FACTOR * saturation_pressure(FINE_T_K))
     visc, cond, misfit = transport_coefficients()
     liquid_ln_p = np.log(saturation_pressure(LIQUID_T_K))
+    # Its cubic spline (not-a-knot ends), stored as polynomial pieces so that drift evaluates it
+    # with numpy alone.
+    from scipy.interpolate import CubicSpline
+
+    liquid_pieces = CubicSpline(LIQUID_T_K, liquid_ln_p).c
     residual = real_gas_factors(state, cp0, ln_limit, molar_mass, r)
     table = {
         "layout": np.array(gas_table.LAYOUT),
@@ -339,6 +344,7 @@ def main(argv=None):
         "ln_water_limit_pa": ln_limit,
         "liquid_t_k": LIQUID_T_K,
         "ln_p_sat_liquid_pa": liquid_ln_p,
+        "ln_p_sat_liquid_pieces": liquid_pieces,
         "ln_viscosity_coef": visc,
         "ln_conductivity_coef": cond,
         "res_t_k": RES_T_K,
