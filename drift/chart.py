@@ -10,6 +10,7 @@ linear estimate), the spread left after it and the notes still beyond the tolera
 from __future__ import annotations
 
 import dataclasses
+import functools
 import math
 from dataclasses import dataclass
 
@@ -360,3 +361,42 @@ def drift_chart(instrument: Instrument, climates: list[Climate], reference: Clim
         summary.append(_summary(instrument, c, drift, fix, reference_hz, names, tolerance_cents))
     return Chart(instrument.name, a4_hz, reference.name, tolerance_cents, [c.name for c in climates],
                  names, rows, summary)
+
+
+def drift_charts(instruments, climates: list[Climate], reference: Climate | None = None,
+                 a4_hz: float = A4_HZ, tolerance_cents: float = TOLERANCE_CENTS, map=map) -> list[Chart]:
+    """Drift charts of many instruments (designs) over the same climates: a maker's sweep.
+
+    Parameters
+    ----------
+    instruments : iterable of drift.instrument.Instrument
+        For example one design retuned for each of several rooms.
+    climates : list of Climate
+    reference, a4_hz, tolerance_cents
+        As for :func:`drift_chart`.
+    map : callable
+        Applies a function to every instrument: the built-in ``map`` (one process, default), or the
+        ``map`` of a :class:`concurrent.futures.ProcessPoolExecutor` to spread the charts over
+        processes. Every argument is plain data that pickles, so no other change is needed; see
+        docs/performance.md for a cluster.
+
+    Returns
+    -------
+    list of Chart, in the order of ``instruments``.
+
+    Examples
+    --------
+    >>> from concurrent.futures import ProcessPoolExecutor
+    >>> from drift import bundled_instruments, load_climate
+    >>> from drift.chart import drift_charts
+    >>> with ProcessPoolExecutor(2) as pool:                                 # doctest: +SKIP
+    ...     charts = drift_charts(bundled_instruments(), [load_climate("tent-evening")], map=pool.map)
+    """
+    job = functools.partial(_chart_of, climates=list(climates), reference=reference, a4_hz=a4_hz,
+                            tolerance_cents=tolerance_cents)
+    return list(map(job, instruments))
+
+
+def _chart_of(instrument: Instrument, climates, reference, a4_hz, tolerance_cents) -> Chart:
+    """:func:`drift_chart` with keyword arguments only (a picklable job for a process pool)."""
+    return drift_chart(instrument, climates, reference, a4_hz, tolerance_cents)

@@ -3,8 +3,6 @@
 SI units throughout. Values marked "from memory" are recalled, not checked against the printed source.
 """
 
-import numpy as np
-
 #: Species of the gas model, in the order used by every mole-fraction array.
 SPECIES = ("N2", "O2", "Ar", "CO2", "H2O")
 #: CoolProp fluid names for :data:`SPECIES`.
@@ -13,7 +11,7 @@ COOLPROP_FLUIDS = ("Nitrogen", "Oxygen", "Argon", "CarbonDioxide", "Water")
 #: Dry air, mole fractions of the three main constituents: ISO 2533:1975, Table 1
 #: (N2 78.084 %, O2 20.9476 %, Ar 0.934 %; from memory). Only their ratios are used: CO2 is set
 #: separately and the trace gases (Ne, He, Kr, ...) are folded into these three by scaling.
-DRY_AIR_N2_O2_AR = np.array([0.78084, 0.209476, 0.00934])
+_DRY_AIR_N2_O2_AR = (0.78084, 0.209476, 0.00934)
 
 #: Default CO2 of outdoor air [mol/mol]: about 420 ppm in the 2020s (common practice).
 DEFAULT_CO2_FRACTION = 420e-6
@@ -46,8 +44,8 @@ ENHANCEMENT_GAMMA = 5.6e-7
 
 #: Sublimation pressure of ice Ih: Wagner, Riethmann, Feistel & Harvey (2011), J. Phys. Chem. Ref.
 #: Data 40, 043103 (IAPWS R14-08(2011)), Eq. 6: ln(p/pt) = (1/theta) sum a_i theta^b_i.
-ICE_SUBLIMATION_A = np.array([-0.212144006e2, 0.273203819e2, -0.610598130e1])
-ICE_SUBLIMATION_B = np.array([0.333333333e-2, 0.120666667e1, 0.170333333e1])
+_ICE_SUBLIMATION_A = (-0.212144006e2, 0.273203819e2, -0.610598130e1)
+_ICE_SUBLIMATION_B = (0.333333333e-2, 0.120666667e1, 0.170333333e1)
 
 #: Stefan-Boltzmann constant [W/(m^2 K^4)], CODATA 2018.
 STEFAN_BOLTZMANN = 5.670374419e-8
@@ -90,3 +88,20 @@ LIMITS = {
     "breath_co2_pct": (0.0, 10.0, "%"),
     "breath_o2_pct": (5.0, 21.0, "%"),
 }
+
+
+#: The constants above that are arrays, made numpy arrays on first use: ``drift --help`` reads
+#: this module and must not wait for numpy.
+_ARRAYS = {"DRY_AIR_N2_O2_AR": _DRY_AIR_N2_O2_AR, "ICE_SUBLIMATION_A": _ICE_SUBLIMATION_A,
+           "ICE_SUBLIMATION_B": _ICE_SUBLIMATION_B}
+
+
+def __getattr__(name: str):
+    if name in _ARRAYS:
+        import numpy as np
+
+        value = np.array(_ARRAYS[name])
+        value.flags.writeable = False
+        globals()[name] = value
+        return value
+    raise AttributeError(f"module 'drift.constants' has no attribute {name!r}")

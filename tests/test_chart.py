@@ -170,3 +170,20 @@ def test_joint_change_out_of_reach_raises_the_same_error():
     with pytest.raises(OutOfRangeError, match="no joint change within ±60 mm centres the notes"):
         REFERENCE.reference_joint_change(ins, cold, reference_hz,
                                          cents(chart.frequencies(ins, cold), reference_hz))
+
+
+def test_sweep_over_a_process_pool_equals_the_charts_one_by_one():
+    """drift_charts with a ProcessPoolExecutor's map gives the same charts as drift_chart in this
+    process (issue 9: a sweep maps onto a process pool with no code change)."""
+    from concurrent.futures import ProcessPoolExecutor
+
+    instruments = [load_instrument("side-blown-flute"), load_instrument("conical-reed")]
+    climates = [resting("cool", 12.0, 0.6)]
+    with ProcessPoolExecutor(2) as pool:
+        spread = chart.drift_charts(instruments, climates, map=pool.map)
+    here = [chart.drift_chart(i, climates) for i in instruments]
+    for a, b in zip(spread, here):
+        assert a.instrument == b.instrument
+        np.testing.assert_allclose([r.drift_cents for r in a.rows], [r.drift_cents for r in b.rows], rtol=0,
+                                   atol=1e-9)
+        assert a.summary[0].adjust_m == pytest.approx(b.summary[0].adjust_m, abs=1e-12)
