@@ -14,7 +14,7 @@ def main():
     instrument = load_instrument(DEFAULT_INSTRUMENT)
     climates = climate.bundled_climates()
     chart.drift_chart(instrument, climates[:1])
-    print(f"first chart of one climate (loads CoolProp): {time.perf_counter() - start:.1f} s")
+    print(f"first chart of one climate (reads the gas table): {time.perf_counter() - start:.1f} s")
     for instrument in bundled_instruments():
         start = time.perf_counter()
         result = chart.drift_chart(instrument, climates)
