@@ -96,7 +96,7 @@ class ReferenceNetwork:
         rho0, c0 = air.density[i0], air.sound_speed[i0]
         omega = 2.0 * np.pi * f
         if seg.excitation in ("reed", "lips"):
-            y_vol = 1j * omega * seg.added_volume_m3 / (rho0 * c0**2)
+            y_vol = 1j * omega * (seg.added_volume_m3 / (rho0 * c0**2) + seg.reed_compliance_m3_pa)
             return 1.0 / (1.0 / z + y_vol)
         return self._jet(f, z, a, b, c, d)
 
@@ -111,13 +111,13 @@ class ReferenceNetwork:
         z_par = 1.0 / y_total
         a_bore = seg.radius_in_m[i0]
         be, te = seg.embouchure_radius_m, seg.embouchure_chimney_m
-        ti, _, _ = acoustics.hole_corrections(be, a_bore, max(te, 1e-6))
+        ti, tm, _, _ = acoustics.hole_corrections(be, a_bore, te)
         rho, c0 = float(air.density[i0]), float(air.sound_speed[i0])
         omega = 2.0 * np.pi * f
         se = np.pi * be**2
         g, zc = acoustics.propagation_zk(f, be, air.sound_speed[i0], air.density[i0], air.viscosity[i0],
                                          air.conductivity[i0], air.cp[i0], air.gamma[i0], lossless=self.lossless)
-        ca, cb, cc, cd = acoustics.cylinder_matrix(g, zc, te)
+        ca, cb, cc, cd = acoustics.cylinder_matrix(g, zc, te + tm)
         load = z_par + 1j * omega * rho * ti / se
         z_hole = (ca * load + cb) / (cc * load + cd)
         to = seg.embouchure_outer_correction_m

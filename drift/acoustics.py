@@ -33,6 +33,10 @@ References
 [8] Chaigne, A., Kergomard, J. (2016). Acoustics of Musical Instruments. Springer, Ch. 5 and 7.
 [9] Fletcher, N. H., Rossing, T. D. (1998). The Physics of Musical Instruments, 2nd ed.
     Springer, Ch. 8.
+[10] Nederveen, C. J., Jansen, J. K. M., van Hassel, R. R. (1998). Corrections for woodwind
+    tone-hole calculations. Acustica 84(5) (authors from memory).
+[11] Keefe, D. H. (1990). Woodwind air column models. J. Acoust. Soc. Am. 88(1), 35-51 (from
+    memory).
 """
 
 from __future__ import annotations
@@ -266,41 +270,59 @@ def radiation_unflanged(frequency_hz, radius_m, sound_speed, density, model: str
 
 
 def hole_corrections(hole_radius_m, bore_radius_m, chimney_m):
-    """Length corrections of a side hole [m]: inner t_i, series open t_a^o and closed t_a^c.
+    """Length corrections of a side hole [m]: inner t_i, matching volume t_m, series t_a^o, t_a^c.
 
-    With delta = b/a (hole over bore radius) and chimney height t, fits to finite-element
-    results of Lefebvre & Scavone (2012) [6] (Eqs. 9, 11 and 12 there; equation numbers and coefficients from
-    memory):
+    With delta = b/a (hole over main-bore radius) and chimney height t (along the hole's axis):
 
         t_i   = b (0.822 - 0.095 d - 1.566 d^2 + 2.138 d^3 - 1.640 d^4 + 0.502 d^5)
+        t_m   = b d (1 + 0.207 d^3) / 8
         t_a^o = b d^2 (-0.35 + 0.06 tanh(2.7 t / b))
-        t_a^c = b d^2 (-0.12 - 0.17 tanh(2.4 t / b))
+        t_a^c = -b d^2 / (1.78 coth(1.78 t / b) + 0.940 + 0.540 d + 0.285 d^2)
 
-    The series corrections are negative lengths (the hole shortens the main bore's inertance),
-    the form of Dubos et al. (1999) [7], Eq. 74 (from memory).
+    t_i (inner end correction) and t_a^o are the finite-element fits of Lefebvre & Scavone (2012)
+    [6] (their Eqs. 9 and 11; equation numbers and coefficients from memory); t_m, the volume
+    between the curved bore wall and the hole's inner end as a length of hole, is Nederveen et al.
+    (1998) [10] and Dubos et al. (1999) [7] (coefficients from memory); t_a^c is Dubos et al.
+    (1999) [7], closed hole (from memory): it vanishes with the height (coth -> inf), since a
+    closed hole of no height is no hole. t_i and t_m are lengths of hole (cross-section pi b^2);
+    t_a^o and t_a^c are lengths of main bore (pi a^2), negative: the hole shortens the bore's
+    inertance.
+
+    Parameters
+    ----------
+    hole_radius_m, bore_radius_m, chimney_m : array_like [m]
+
+    Returns
+    -------
+    ti, tm, tao, tac : ndarray [m]
     """
     b = np.asarray(hole_radius_m, dtype=float)
     d = b / np.asarray(bore_radius_m, dtype=float)
     t = np.asarray(chimney_m, dtype=float)
     ti = b * (0.822 - 0.095 * d - 1.566 * d**2 + 2.138 * d**3 - 1.640 * d**4 + 0.502 * d**5)
+    tm = b * d * (1.0 + 0.207 * d**3) / 8.0
     tao = b * d**2 * (-0.35 + 0.06 * np.tanh(2.7 * t / b))
-    tac = b * d**2 * (-0.12 - 0.17 * np.tanh(2.4 * t / b))
-    return ti, tao, tac
+    th = np.tanh(1.78 * t / b)  # written with tanh so that t = 0 gives 0, not inf / inf
+    tac = -b * d**2 * th / (1.78 + (0.940 + 0.540 * d + 0.285 * d**2) * th)
+    return ti, tm, tao, tac
 
 
 def hole_impedances(frequency_hz, hole_radius_m, bore_radius_m, chimney_m, props, lossless=False,
                     outer_correction_m=None):
     """Shunt and series impedances [Pa s/m^3] of side holes, open and closed.
 
-    Each hole is the T-network of Keefe (1990) and Dubos et al. (1999) [7]: a shunt impedance Zs
-    between two half series impedances Za/2 (Lefebvre & Scavone 2012 [6], Eq. 2, from memory).
-    With Zh = rho c / (pi b^2) and the chimney (height t) a lossy cylinder of the hole's radius
-    (:func:`propagation_zk`):
+    Each hole is the T-network of Keefe (1990) [11] and Dubos et al. (1999) [7]: a shunt Zs
+    between two half series impedances Za/2. With S_h = pi b^2, S = pi a^2 (main bore),
+    Zh = rho c / S_h and the chimney a lossy cylinder of the hole's radius (:func:`propagation_zk`)
+    and height t + t_m (:func:`hole_corrections`):
 
-        open:   Zs = j omega rho t_i / S_h + chimney(t) loaded by Zr,
+        open:   Zs = j omega rho t_i / S_h + chimney(t + t_m) loaded by Zr,
                 Zr = Zh [(kb)^2/4 + j k t_o],   t_o = 0.7175 b (:data:`HOLE_OUTER_END_CORRECTION`)
-        closed: Zs = j omega rho t_i / S_h + Zc_h coth(Gamma_h t)
-        series: Za = j omega rho t_a / S_h, with t_a^o or t_a^c (:func:`hole_corrections`)
+        closed: Zs = j omega rho t_i / S_h + Zc_h coth(Gamma_h (t + t_m))
+        series: Za = j omega rho t_a / S, with t_a^o or t_a^c
+
+    At low frequency a closed hole is the volume S_h (t + t_m) (Keefe 1990 [11]; Nederveen et
+    al. 1998 [10]) and an open one the inertance rho (t_i + t + t_m + t_o) / S_h.
 
     Parameters
     ----------
@@ -324,19 +346,20 @@ def hole_impedances(frequency_hz, hole_radius_m, bore_radius_m, chimney_m, props
     rho, c = p["density"], p["sound_speed"]
     omega = 2.0 * np.pi * f
     sh = np.pi * b**2
-    ti, tao, tac = hole_corrections(b, a, t)
+    ti, tm, tao, tac = hole_corrections(b, a, t)
+    height = t + tm
     g, zc = propagation_zk(f, b, **p, lossless=lossless)
     k = omega / c
     to = HOLE_OUTER_END_CORRECTION * b if outer_correction_m is None else col(outer_correction_m)
     zh = rho * c / sh
     zr = zh * (0.25 * (k * b) ** 2 * (0.0 if lossless else 1.0) + 1j * k * to)
-    th = np.tanh(g * t)
+    th = np.tanh(g * height)
     inner = 1j * omega * rho * ti / sh
     zs_open = inner + zc * (zr + zc * th) / (zc + zr * th)
-    with np.errstate(divide="ignore", invalid="ignore"):
-        zs_closed = inner + np.where(t > 0, zc / th, np.inf)
-    za_open = 1j * omega * rho * tao / sh
-    za_closed = 1j * omega * rho * tac / sh
+    zs_closed = inner + zc / th
+    s = np.pi * a**2
+    za_open = 1j * omega * rho * tao / s
+    za_closed = 1j * omega * rho * tac / s
     return zs_open, zs_closed, za_open, za_closed
 
 
@@ -423,6 +446,7 @@ class Network:
         self._hole_air = {k: v[:, hs] for k, v in self._air.items()}
         self.hole_air = take_segments(airs[0], hs) if self.n_holes else None
         self._volume = stack([s.added_volume_m3 for s in segments])
+        self._compliance = stack([s.reed_compliance_m3_pa for s in segments])
         self._emb_radius = stack([s.embouchure_radius_m for s in segments])
         self._emb_chimney = stack([s.embouchure_chimney_m for s in segments])
         self._emb_outer = stack([HOLE_OUTER_END_CORRECTION * s.embouchure_radius_m if s.embouchure_outer_correction_m
@@ -436,7 +460,9 @@ class Network:
         """c / 2L [Hz] per state, the spacing of the resonances of the whole closed bore: L every
         segment plus the input's added volume as bore of the input's cross-section, c the lowest
         speed of sound along the bore (a shorter air column spaces its resonances wider)."""
-        extra = self._volume / (np.pi * self._r_in[:, self.seg.n_cavity] ** 2)
+        i0 = self.seg.n_cavity
+        stiffness = self._air["density"][:, i0] * self._air["sound_speed"][:, i0] ** 2
+        extra = (self._volume + self._compliance * stiffness) / (np.pi * self._r_in[:, i0] ** 2)
         return self._air["sound_speed"].min(axis=1) / (2.0 * (self._len.sum(axis=1) + extra))
 
     def _point_matrices(self, state, f):
@@ -481,9 +507,12 @@ class Network:
         hole is common to them: its matrix product (a closed hole as the matrix [[1 + Za Ys/2,
         Za (1 + Za Ys/4)], [Ys, 1 + Za Ys/2]], Ys = 1/Zs) is formed once per frequency and each
         fingering propagated only up to its first open hole (:meth:`_shared_upper_bore`). All
-        states and frequencies go through one loop over the segments. Reed and lips: a
-        compliance j omega V/(rho c^2) in parallel at the input (the reed's equivalent volume,
-        or the lip cup). Jet: the embouchure hole's chimney (with inner and outer end
+        states and frequencies go through one loop over the segments. Reed and lips: the
+        admittance j omega (V/(rho c^2) + C) in parallel at the input, V the geometric volume
+        (mouthpiece cavity, missing cone tip, lip cup) and C the reed's compliance [m^3/Pa]. The
+        reed acts as the volume gamma p C of the air at the input (Nederveen 1998, Sec. 9,
+        from memory), which with rho c^2 = gamma p (ideal gas) is the admittance j omega C: a
+        volume that shrinks with the pressure. Jet: the embouchure hole's chimney (with inner and outer end
         corrections, :func:`hole_impedances`) loads the parallel combination of the stopped
         cavity and the bore, and its outer radiation impedance is in series; the minima of this
         impedance are the jet's resonances (Fletcher & Rossing 1998 [9], Sec. 16.3).
@@ -543,7 +572,7 @@ class Network:
         rho0, c0 = air["density"][st, i0], air["sound_speed"][st, i0]
         omega = 2.0 * np.pi * f
         if seg.excitation in ("reed", "lips"):
-            y_vol = 1j * omega * self._volume[st] / (rho0 * c0**2)
+            y_vol = 1j * omega * (self._volume[st] / (rho0 * c0**2) + self._compliance[st])
             return 1.0 / (1.0 / z + y_vol)
         return self._jet(st, f, z, a, b, c, d)
 
@@ -603,13 +632,13 @@ class Network:
         z_par = 1.0 / y_total
         a_bore = self._r_in[st, i0]
         be, te = self._emb_radius[st], self._emb_chimney[st]
-        ti, _, _ = hole_corrections(be, a_bore, np.maximum(te, 1e-6))
+        ti, tm, _, _ = hole_corrections(be, a_bore, te)
         props = {k: v[st, i0] for k, v in air.items()}
         rho, c0 = props["density"], props["sound_speed"]
         omega = 2.0 * np.pi * f
         se = np.pi * be**2
         g, zc = propagation_zk(f, be, **props, lossless=self.lossless)
-        ca, cb, cc, cd = cylinder_matrix(g, zc, te)
+        ca, cb, cc, cd = cylinder_matrix(g, zc, te + tm)
         load = z_par + 1j * omega * rho * ti / se
         z_hole = (ca * load + cb) / (cc * load + cd)
         k = omega / c0

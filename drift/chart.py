@@ -19,7 +19,7 @@ import numpy as np
 from drift import pitch, thermal
 from drift.bore_state import BoreProfile
 from drift.climate import Climate, Player
-from drift.constants import A4_HZ, TOLERANCE_CENTS
+from drift.constants import NAME_WARNING_CENTS, TOLERANCE_CENTS
 from drift.errors import DriftError, OutOfRangeError
 from drift.instrument import Instrument
 from drift.scale import cents, equal_temperament_hz
@@ -67,7 +67,8 @@ class ClimateSummary:
 class Chart:
     """The drift chart of one instrument: a :class:`DriftRow` per note and climate, a
     :class:`ClimateSummary` per climate, and the chart's settings (A4 [Hz], reference climate,
-    tolerance [cent])."""
+    tolerance [cent]); each note's frequency at the reference [Hz] and its offset from equal
+    temperament there [cent]; the notes far from their names (:func:`name_warnings`)."""
 
     instrument: str
     a4_hz: float
@@ -77,6 +78,78 @@ class Chart:
     notes: list[str]
     rows: list[DriftRow]
     summary: list[ClimateSummary]
+    reference_hz: tuple[float, ...] = ()
+    reference_offset_cents: tuple[float, ...] = ()
+    name_warnings: tuple[NameWarning, ...] = ()
+
+
+@dataclass(frozen=True)
+class NameWarning:
+    """A note whose playing frequency at the instrument's design condition lies more than
+    :data:`drift.constants.NAME_WARNING_CENTS` from the equal-temperament pitch of its name.
+
+    Attributes
+    ----------
+    note : str
+        The note's name (scientific pitch notation).
+    register : int
+    frequency_hz : float
+        Playing frequency at the design condition [Hz].
+    target_hz : float
+        Equal-temperament frequency of the name at the design A4 [Hz].
+    offset_cents : float
+        1200 log2(frequency / target) [cent].
+    a4_hz : float
+        The design A4 the target is taken at [Hz].
+    """
+
+    note: str
+    register: int
+    frequency_hz: float
+    target_hz: float
+    offset_cents: float
+    a4_hz: float
+
+
+def name_warnings(instrument: Instrument, notes=None, frequencies_hz=None) -> tuple[NameWarning, ...]:
+    """The named notes that sound more than :data:`drift.constants.NAME_WARNING_CENTS` (50 cents,
+    half a semitone) from their name at the design condition.
+
+    Parameters
+    ----------
+    instrument : drift.instrument.Instrument
+    notes : sequence of drift.instrument.Note, optional
+        The notes to check (default: all of the instrument's); unnamed fingerings are skipped.
+    frequencies_hz : array_like [Hz], optional
+        The playing frequency of each of ``notes`` at the design condition, when already known;
+        otherwise computed from :func:`drift.thermal.design_profile`.
+
+    Returns
+    -------
+    tuple of :class:`NameWarning`, in the order of ``notes`` (a note that does not sound, NaN,
+    is not flagged).
+
+    Notes
+    -----
+    The target is the equal-temperament pitch a4 2^((m - 69)/12) of the name's MIDI number m at
+    the instrument's ``[design] a4_hz`` (:func:`drift.scale.equal_temperament_hz`; ISO 16:1975).
+    """
+    notes = instrument.notes if notes is None else tuple(notes)
+    if not any(n.name for n in notes):
+        return ()
+    if frequencies_hz is None:
+        found = pitch.note_frequencies(instrument, thermal.design_profile(instrument), notes=notes)
+        frequencies_hz = [n.frequency_hz for n in found]
+    a4 = instrument.design.a4_hz
+    out = []
+    for note, f in zip(notes, np.asarray(frequencies_hz, dtype=float)):
+        if not note.name or not math.isfinite(f):
+            continue
+        target = float(equal_temperament_hz(note.name, a4))
+        offset = float(cents(f, target))
+        if abs(offset) > NAME_WARNING_CENTS:
+            out.append(NameWarning(note.name, note.register, float(f), target, offset, a4))
+    return tuple(out)
 
 
 def design_climate(instrument: Instrument) -> Climate:
@@ -295,7 +368,7 @@ def _summary(instrument: Instrument, climate: Climate, drift, solved, reference_
 
 
 def drift_chart(instrument: Instrument, climates: list[Climate], reference: Climate | None = None,
-                a4_hz: float = A4_HZ, tolerance_cents: float = TOLERANCE_CENTS, progress=None) -> Chart:
+                a4_hz: float | None = None, tolerance_cents: float = TOLERANCE_CENTS, progress=None) -> Chart:
     """Compute the drift chart of ``instrument`` over ``climates``.
 
     Parameters
@@ -304,8 +377,9 @@ def drift_chart(instrument: Instrument, climates: list[Climate], reference: Clim
     climates : list of Climate
     reference : Climate, optional
         The condition drift is measured from (default: :func:`design_climate`).
-    a4_hz : float
-        Reference pitch for the offset from equal temperament [Hz].
+    a4_hz : float, optional
+        Reference pitch for the offset from equal temperament [Hz] (default: the instrument's
+        ``[design] a4_hz``).
     tolerance_cents : float
         Notes whose drift after the joint change exceeds this [cent] are listed.
     progress : callable, optional
@@ -317,7 +391,9 @@ def drift_chart(instrument: Instrument, climates: list[Climate], reference: Clim
     Chart
         A :class:`DriftRow` per note and climate (frequency [Hz], drift against the reference
         and offset from equal temperament [cent]) and a :class:`ClimateSummary` per climate
-        (mean, spread, the joint change [m] that centres the mean, what stays out of tune).
+        (mean, spread, the joint change [m] that centres the mean, what stays out of tune); the
+        notes' frequencies at the reference [Hz]; the notes far from their names at the design
+        condition (:func:`name_warnings`).
 
     Raises
     ------
@@ -341,6 +417,8 @@ def drift_chart(instrument: Instrument, climates: list[Climate], reference: Clim
     """
     if not instrument.notes:
         raise DriftError(f"{instrument.name}: the instrument file has no [[note]]; a chart needs named notes")
+    a4_hz = instrument.design.a4_hz if a4_hz is None else a4_hz
+    at_design = reference is None
     reference = reference or design_climate(instrument)
     names = [n.name for n in instrument.notes]
     equal = np.array([equal_temperament_hz(n, a4_hz) for n in names])
@@ -349,7 +427,11 @@ def drift_chart(instrument: Instrument, climates: list[Climate], reference: Clim
         profiles.append(thermal.climate_profile(instrument, c))
         if progress:
             progress()
+    if not at_design:
+        profiles.append(thermal.design_profile(instrument))
     reference_hz, *found = pitch.state_frequencies([instrument] * len(profiles), profiles)
+    design_hz = reference_hz if at_design else found.pop()
+    profiles = profiles[:len(climates) + 1]
     drifts = [cents(f, reference_hz) for f in found]
     solved = (joint_changes(instrument, profiles[1:], reference_hz, drifts) if instrument.tuning is not None
               else [None] * len(climates))
@@ -360,11 +442,14 @@ def drift_chart(instrument: Instrument, climates: list[Climate], reference: Clim
             rows.append(DriftRow(note.name, note.register, c.name, float(value), float(d), float(o)))
         summary.append(_summary(instrument, c, drift, fix, reference_hz, names, tolerance_cents))
     return Chart(instrument.name, a4_hz, reference.name, tolerance_cents, [c.name for c in climates],
-                 names, rows, summary)
+                 names, rows, summary, tuple(float(f) for f in reference_hz),
+                 tuple(float(o) for o in cents(reference_hz, equal)),
+                 name_warnings(instrument, instrument.notes, design_hz))
+
 
 
 def drift_charts(instruments, climates: list[Climate], reference: Climate | None = None,
-                 a4_hz: float = A4_HZ, tolerance_cents: float = TOLERANCE_CENTS, map=map) -> list[Chart]:
+                 a4_hz: float | None = None, tolerance_cents: float = TOLERANCE_CENTS, map=map) -> list[Chart]:
     """Drift charts of many instruments (designs) over the same climates: a maker's sweep.
 
     Parameters

@@ -13,7 +13,7 @@ import sys
 import click
 
 from drift import __version__
-from drift.constants import A4_HZ, TOLERANCE_CENTS
+from drift.constants import TOLERANCE_CENTS
 
 FORMAT_OPTION = click.option(
     "--format",
@@ -35,6 +35,16 @@ def _range(name: str):
 
     low, high, _ = LIMITS[name]
     return click.FloatRange(low, high)
+
+
+def warn_on_stderr(doc: dict, fmt: str) -> None:
+    """With CSV output, which has no place for them, the notes far from their names go to stderr
+    (tables carry them as lines, JSON as ``name_warnings``)."""
+    from drift import render
+
+    if fmt == "csv":
+        for line in render.name_warning_lines(doc):
+            click.echo(f"drift: {line}", err=True)
 
 
 def reports_errors(command):
@@ -179,8 +189,12 @@ class LazyProgress:
               help="Bundled climate name or climate file; repeat for several. Default: every bundled climate.")
 @click.option("--reference", "reference_name", default=None, metavar="CLIMATE",
               help="Condition the drift is measured from. Default: the instrument's [design] condition.")
-@click.option("--a4", "a4_hz", type=click.FloatRange(380.0, 480.0), default=A4_HZ, show_default=True,
-              help="Pitch of A4 for the offset from equal temperament [Hz] (ISO 16: 440).")
+@click.option("--a4", "a4_hz", type=click.FloatRange(380.0, 480.0), default=None,
+              help="Pitch of A4 for the offset from equal temperament [Hz], 380 to 480. Default: the "
+                   "instrument's [design] a4_hz (440 when the file gives none, ISO 16).")
+@click.option("--offsets", "show_offsets", is_flag=True,
+              help="Add a table of each note's offset from equal temperament [cents] at that A4, at "
+                   "the reference and in each climate.")
 @click.option("--tolerance", "tolerance_cents", type=click.FloatRange(0.0, 100.0, min_open=True),
               default=TOLERANCE_CENTS,
               show_default=True,
@@ -188,7 +202,8 @@ class LazyProgress:
 @FORMAT_OPTION
 @OUTPUT_OPTION
 @reports_errors
-def chart_command(instrument, climate_names, reference_name, a4_hz, tolerance_cents, fmt, output):
+def chart_command(instrument, climate_names, reference_name, a4_hz, show_offsets, tolerance_cents, fmt,
+                  output):
     """Drift of every note across climates, with the tuning-joint change for each.
 
     INSTRUMENT is a bundled instrument name or an instrument file (default: the bundled
@@ -207,7 +222,9 @@ def chart_command(instrument, climate_names, reference_name, a4_hz, tolerance_ce
     finally:
         progress.close()
     cautions = [c for where in climates for c in advice.cautions(inst.material, where)]
-    render.emit(render.chart_document(result, cautions), fmt, render.chart_table, render.chart_csv, output)
+    doc = render.chart_document(result, cautions)
+    render.emit(doc, fmt, functools.partial(render.chart_table, offsets=show_offsets), render.chart_csv, output)
+    warn_on_stderr(doc, fmt)
 
 
 @main.command("warmup")
@@ -267,7 +284,9 @@ def warmup_command(instrument, climate_name, plan_text, step_s, reference_name, 
                                         names=(climate_label, reference_label))
     finally:
         progress.close()
-    render.emit(render.warmup_document(result), fmt, render.warmup_table, render.warmup_csv, output)
+    doc = render.warmup_document(result)
+    render.emit(doc, fmt, render.warmup_table, render.warmup_csv, output)
+    warn_on_stderr(doc, fmt)
 
 
 @main.command("resonances")
@@ -286,9 +305,10 @@ def resonances_command(instrument, note_name, temp_c, rh_pct, pressure_kpa, alti
 
     INSTRUMENT is a bundled instrument name or an instrument file (default: the bundled default,
     see `drift instruments`). The bore is filled with uniform room air at the given condition and
-    its walls are at that temperature.
+    its walls are at that temperature. A named note that plays more than 50 cents from its
+    name at the instrument's design condition is flagged.
     """
-    from drift import pitch, render
+    from drift import chart, pitch, render
     from drift.climate import Room
     from drift.constants import ZERO_CELSIUS
     from drift.instrument import DEFAULT_INSTRUMENT, load_instrument
@@ -304,7 +324,9 @@ def resonances_command(instrument, note_name, temp_c, rh_pct, pressure_kpa, alti
         notes = chosen
     room = Room(temp_c + ZERO_CELSIUS, pressure_pa(pressure_kpa, altitude_m), rh_pct / 100.0, co2_ppm * 1e-6)
     found = pitch.find_resonances(inst, room, count=count, notes=notes, lossless=lossless)
-    render.emit(render.resonances_document(found), fmt, render.resonances_table, render.resonances_csv)
+    doc = render.resonances_document(found, chart.name_warnings(inst, notes))
+    render.emit(doc, fmt, render.resonances_table, render.resonances_csv)
+    warn_on_stderr(doc, fmt)
 
 
 @main.command("instruments")

@@ -70,6 +70,10 @@ TOLERANCE_CENTS = 5.0
 #: Band around the steady state of playing [cent] within which the pitch counts as settled
 #: (common practice: a couple of cents is below what a player corrects by ear in a held note).
 SETTLE_CENTS = 2.0
+#: Offset from the equal-temperament pitch of a note's name [cent] beyond which the note is
+#: flagged: half a semitone, where the sound lies nearer the neighbouring name than its own
+#: (equal temperament, ISO 16:1975 reference; the figure follows from the 100-cent semitone).
+NAME_WARNING_CENTS = 50.0
 #: Longest segment of a discretised bore [m], acoustic and thermal: short enough to follow a
 #: temperature profile along the bore.
 SEGMENT_LENGTH_M = 0.02

@@ -35,16 +35,24 @@ NOTE_KEYS = ("name", "closed", "register")
 DESIGN_KEYS = ("temperature_c", "relative_humidity_pct", "pressure_kpa", "co2_ppm", "playing", "a4_hz")
 TUNING_KEYS = ("position_mm", "min_change_mm", "max_change_mm")
 INPUT_KEYS = {
-    "reed": ("added_volume_mm3",),
+    "reed": ("reed_volume_mm3", "cavity_volume_mm3"),
     "lips": ("cup_volume_mm3", "throat_diameter_mm", "throat_length_mm", "backbore_length_mm"),
     "jet": ("embouchure_position_mm", "embouchure_diameter_mm", "embouchure_chimney_mm",
             "embouchure_outer_correction_mm"),
 }
 
-#: Equivalent volume of a reed's compliance and pumped flow [m^3]: about 1 cm^3 for a clarinet
-#: reed (Nederveen 1998, *Acoustical Aspects of Woodwind Instruments*, Sec. 9; Dalmont et al.
-#: 1995; value from memory). It acts as a compliance in parallel at the input.
+#: Equivalent volume of a reed's compliance and pumped flow [m^3] at the reed's reference
+#: condition (:data:`REED_REFERENCE_GAMMA` x :data:`REED_REFERENCE_PRESSURE`): about 1 cm^3 for a
+#: clarinet reed (Nederveen 1998, *Acoustical Aspects of Woodwind Instruments*, Sec. 9; Dalmont
+#: et al. 1995; value from memory).
 DEFAULT_REED_VOLUME = 1.0e-6
+#: The condition a reed's equivalent volume is given at: gamma p = 1.4 x 101325 Pa (the standard
+#: atmosphere's pressure, ISO 2533, and the heat-capacity ratio 7/5 of an ideal diatomic gas, by
+#: definition of the key). A reed of mechanical compliance C [m^3/Pa] acts as the volume
+#: V = gamma p C of the air at the input (Nederveen 1998, Sec. 9, from memory), so
+#: C = V_ref / (1.4 x 101325 Pa).
+REED_REFERENCE_GAMMA = 1.4
+REED_REFERENCE_PRESSURE = 101325.0
 #: Lip-mouthpiece defaults (common practice for a trumpet-sized mouthpiece, from memory):
 #: cup volume [m^3], throat diameter and length [m], backbore length [m].
 DEFAULT_CUP_VOLUME = 1.5e-6
@@ -152,8 +160,10 @@ class Tuning:
 class InputEnd:
     """What the exciter adds at the input end of the bore.
 
-    reed : ``added_volume_m3`` [m^3], the reed's equivalent volume plus any mouthpiece cavity
-        not drawn as bore (a compliance in parallel at the input).
+    reed : ``reed_compliance_m3_pa`` [m^3/Pa], the reed's compliance C (with its pumped flow),
+        acting as the volume gamma p C of the air at the input; ``added_volume_m3`` [m^3], a
+        fixed geometric volume at the input: a mouthpiece cavity or the missing tip of a cone not
+        drawn as bore. Both are compliances in parallel at the input.
     lips : ``added_volume_m3`` is the cup volume [m^3]; a throat (cylinder of
         ``throat_diameter_m`` x ``throat_length_m``) and a backbore (cone from the throat to the
         bore's first diameter, ``backbore_length_m``) lie before position 0.
@@ -165,6 +175,7 @@ class InputEnd:
 
     kind: str
     added_volume_m3: float = 0.0
+    reed_compliance_m3_pa: float = 0.0
     throat_diameter_m: float = 0.0
     throat_length_m: float = 0.0
     backbore_length_m: float = 0.0
@@ -187,7 +198,8 @@ class Instrument:
     stations_m: np.ndarray
     holes: tuple[Hole, ...] = ()
     notes: tuple[Note, ...] = ()
-    input_end: InputEnd = field(default_factory=lambda: InputEnd("reed", DEFAULT_REED_VOLUME))
+    input_end: InputEnd = field(default_factory=lambda: InputEnd(
+        "reed", reed_compliance_m3_pa=DEFAULT_REED_VOLUME / (REED_REFERENCE_GAMMA * REED_REFERENCE_PRESSURE)))
     design: Design = field(default_factory=Design)
     tuning: Tuning | None = None
     material: str | None = None
@@ -428,10 +440,16 @@ def _stations(bore: Table) -> np.ndarray:
 
 
 def _input_end(top: Table, excitation: str, stations: np.ndarray) -> InputEnd:
+    if excitation == "reed" and top.has("input") and isinstance(top.data["input"], dict) \
+            and "added_volume_mm3" in top.data["input"]:
+        top.fail("[input] added_volume_mm3", "is replaced by reed_volume_mm3 (the reed's equivalent volume "
+                 "at 101.325 kPa) and cavity_volume_mm3 (a mouthpiece cavity or missing cone tip)")
     t = top.table("input", INPUT_KEYS[excitation])
     if excitation == "reed":
-        v = t.number("added_volume_mm3", DEFAULT_REED_VOLUME * 1e9, low=0.0, high=1e6, unit="mm³")
-        return InputEnd("reed", added_volume_m3=v * 1e-9)
+        v = t.number("reed_volume_mm3", DEFAULT_REED_VOLUME * 1e9, low=0.0, high=1e6, unit="mm³")
+        cavity = t.number("cavity_volume_mm3", 0.0, low=0.0, high=1e6, unit="mm³")
+        return InputEnd("reed", added_volume_m3=cavity * 1e-9,
+                        reed_compliance_m3_pa=v * 1e-9 / (REED_REFERENCE_GAMMA * REED_REFERENCE_PRESSURE))
     if excitation == "lips":
         return InputEnd(
             "lips",
@@ -528,7 +546,9 @@ def to_toml(instrument: Instrument, header: str = "") -> str:
     inp = ins.input_end
     lines += ["", "[input]"]
     if ins.excitation == "reed":
-        lines.append(f"added_volume_mm3 = {_fmt(inp.added_volume_m3 * 1e9, 1)}")
+        reed = inp.reed_compliance_m3_pa * REED_REFERENCE_GAMMA * REED_REFERENCE_PRESSURE
+        lines += [f"reed_volume_mm3 = {_fmt(reed * 1e9, 1)}",
+                  f"cavity_volume_mm3 = {_fmt(inp.added_volume_m3 * 1e9, 1)}"]
     elif ins.excitation == "lips":
         lines += [f"cup_volume_mm3 = {_fmt(inp.added_volume_m3 * 1e9, 1)}",
                   f"throat_diameter_mm = {_fmt(inp.throat_diameter_m * 1e3)}",

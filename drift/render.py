@@ -155,17 +155,36 @@ def chart_document(chart, cautions) -> dict:
         "summary": summary,
         "cautions": rows,
         "care_note": advice.DEFER if rows else None,
+        "reference_notes": [{"note": n, "frequency_hz": f, "offset_from_equal_cents": o}
+                            for n, f, o in zip(chart.notes, chart.reference_hz, chart.reference_offset_cents)],
+        "name_warnings": name_warning_records(chart.name_warnings),
     }
 
 
-def resonances_document(found) -> dict:
+def name_warning_records(warnings) -> list[dict]:
+    """The notes far from their names (:class:`drift.chart.NameWarning`) as JSON records."""
+    return [{"note": w.note, "register": w.register, "frequency_hz": w.frequency_hz,
+             "equal_temperament_hz": w.target_hz, "offset_from_equal_cents": w.offset_cents,
+             "a4_hz": w.a4_hz} for w in warnings]
+
+
+def name_warning_lines(doc: dict) -> list[str]:
+    """One line per note of ``doc["name_warnings"]``, for tables and standard error."""
+    return [f"warning: {w['note']} is {w['offset_from_equal_cents']:+.0f} cents from its name at the "
+            f"design condition: {w['frequency_hz']:.2f} Hz, not {w['equal_temperament_hz']:.2f} Hz"
+            for w in doc.get("name_warnings") or []]
+
+
+def resonances_document(found, warnings=()) -> dict:
     """A :class:`drift.pitch.Resonances` as the JSON document of ``drift resonances``; the register
-    is shown only for the named fingerings of an instrument file that lists notes."""
+    is shown only for the named fingerings of an instrument file that lists notes. ``warnings``:
+    the shown notes far from their names (:func:`drift.chart.name_warnings`)."""
     named = any(n.name for n in found.notes)
     return {"instrument": found.instrument,
             "fingerings": [{"note": n.name, "register": n.register if named else None,
                             "resonances_hz": [float(f) for f in res]}
-                           for n, res in zip(found.notes, found.frequencies_hz)]}
+                           for n, res in zip(found.notes, found.frequencies_hz)],
+            "name_warnings": name_warning_records(warnings)}
 
 
 def warmup_document(w) -> dict:
@@ -200,6 +219,7 @@ def warmup_document(w) -> dict:
         "settle_from_cold_minutes": (None if w.settle_from_cold_s is None
                                      else w.settle_from_cold_s / 60.0),
         "inlet_position_mm": round(w.inlet_position_m * 1e3, 3),
+        "name_warnings": name_warning_records(w.name_warnings),
     }
 
 
@@ -298,9 +318,11 @@ def _signed(value, digits=1) -> str:
     return f"{value:+.{digits}f}"
 
 
-def chart_table(doc: dict) -> str:
+def chart_table(doc: dict, offsets: bool = False) -> str:
     """The chart as text: notes as rows, climates as columns (drift in cents, one decimal), the
-    summary lines under each block of columns, then warnings and the notes still out of tune."""
+    summary lines under each block of columns; with ``offsets``, a second table of each note's
+    offset from equal temperament [cents] at the chart's A4, at the reference and in each
+    climate; then warnings and the notes still out of tune."""
     notes = list(dict.fromkeys(r["note"] for r in doc["rows"]))
     climates = doc["climates"]
     drift = {(r["note"], r["climate"]): r["drift_cents"] for r in doc["rows"]}
@@ -322,6 +344,8 @@ def chart_table(doc: dict) -> str:
         rows.append(["out of tune"] + [str(len(summary[c]["out_of_tolerance"])) for c in names])
         out.append(table(rows, ["note"] + [headers[i] for i in block],
                          colalign=("left",) + ("right",) * len(names)))
+    if offsets:
+        out += _offset_table(doc, notes, first, width)
     notes_text = [f"joint mm: + pull the tuning joint out, − push it in, to centre the mean drift. "
                   f"out of tune: notes beyond ±{doc['tolerance_cents']:g} cents after that change."]
     for s in doc["summary"]:
@@ -330,6 +354,7 @@ def chart_table(doc: dict) -> str:
             notes_text.append(f"{s['climate']}: still out {when}: {', '.join(s['out_of_tolerance'])}")
         if s.get("warning"):
             notes_text.append(f"{s['climate']}: warning: {s['warning']}")
+    notes_text += name_warning_lines(doc)
     out += [textwrap.fill(line, TABLE_WIDTH, subsequent_indent="    ") for line in notes_text]
     if doc.get("cautions"):
         out += ["", "Care:"]
@@ -337,6 +362,25 @@ def chart_table(doc: dict) -> str:
                               initial_indent="  ", subsequent_indent="    ") for c in doc["cautions"]]
         out.append(textwrap.fill(doc["care_note"], TABLE_WIDTH, initial_indent="  ", subsequent_indent="  "))
     return "\n".join(out) + "\n"
+
+
+def _offset_table(doc: dict, notes: list[str], first: int, width: int) -> list[str]:
+    """The lines of the chart's table of offsets from equal temperament [cents]: notes as rows,
+    the reference and then each climate as columns."""
+    offset = {(r["note"], r["climate"]): r["offset_from_equal_cents"] for r in doc["rows"]}
+    at_reference = {r["note"]: r["offset_from_equal_cents"] for r in doc.get("reference_notes", [])}
+    reference = "reference"
+    columns = [reference, *doc["climates"]]
+    for n in notes:
+        offset[(n, reference)] = at_reference.get(n)
+    headers = [_header(c, width) for c in columns]
+    out = [f"Offset from equal temperament in cents (A4 = {doc['a4_hz']:g} Hz; reference: "
+           f"{doc['reference']}; + sharp, − flat)", ""]
+    for block in _column_blocks(first + 2, headers):
+        rows = [[n] + [_signed(offset[(n, columns[i])]) for i in block] for n in notes]
+        out.append(table(rows, ["note"] + [headers[i] for i in block],
+                         colalign=("left",) + ("right",) * len(block)))
+    return out
 
 
 CHART_COLUMNS = ["note", "register", "climate", "frequency_hz", "drift_cents", "offset_from_equal_cents"]
@@ -400,7 +444,7 @@ def warmup_table(doc: dict) -> str:
             text += (f"play phase {s['phase']} (from minute {s['start_minute']:g}): within "
                      f"{doc['tolerance_cents']:g} cents of the steady state after "
                      f"{s['minutes_to_settle']:g} min (minute {s['settled_minute']:g})\n")
-    return text
+    return text + "".join(line + "\n" for line in name_warning_lines(doc))
 
 
 def _cents(value) -> str:
@@ -425,7 +469,8 @@ def resonances_table(doc: dict) -> str:
             + [f"{v:.2f}" for v in f["resonances_hz"]] + [""] * (width - len(f["resonances_hz"]))
             for f in fingerings]
     headers = ["note", "reg"] + [f"f{i + 1} Hz" for i in range(width)]
-    return f"{doc['instrument']}\n" + table(body, headers, colalign=("left", "right") + ("right",) * width)
+    text = f"{doc['instrument']}\n" + table(body, headers, colalign=("left", "right") + ("right",) * width)
+    return text + "".join(line + "\n" for line in name_warning_lines(doc))
 
 
 def resonances_csv(doc: dict) -> str:

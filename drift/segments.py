@@ -49,7 +49,10 @@ class Segments:
     hole_position_m : ndarray (h,) [m]
     excitation : str
     added_volume_m3 : float
-        Compliance volume in parallel at the input [m^3] (reed volume or lip cup).
+        Geometric volume in parallel at the input [m^3] (a reed mouthpiece's cavity or missing
+        cone tip, or the lip cup); it expands with the bore.
+    reed_compliance_m3_pa : float
+        The reed's compliance in parallel at the input [m^3/Pa] (:class:`drift.instrument.InputEnd`).
     embouchure_radius_m, embouchure_chimney_m : float [m]
     embouchure_outer_correction_m : float or None [m]
     """
@@ -66,6 +69,7 @@ class Segments:
     hole_position_m: np.ndarray
     excitation: str
     added_volume_m3: float = 0.0
+    reed_compliance_m3_pa: float = 0.0
     embouchure_radius_m: float = 0.0
     embouchure_chimney_m: float = 0.0
     embouchure_outer_correction_m: float | None = None
@@ -192,6 +196,7 @@ def discretise(instrument: Instrument, max_segment_m: float = SEGMENT_LENGTH_M) 
         hole_position_m=np.array([h.position_m for h in holes], dtype=float),
         excitation=instrument.excitation,
         added_volume_m3=inp.added_volume_m3,
+        reed_compliance_m3_pa=inp.reed_compliance_m3_pa,
         embouchure_radius_m=inp.embouchure_diameter_m / 2,
         embouchure_chimney_m=inp.embouchure_chimney_m,
         embouchure_outer_correction_m=inp.embouchure_outer_correction_m,

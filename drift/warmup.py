@@ -14,7 +14,7 @@ from typing import Sequence
 import numpy as np
 
 from drift import constants as K
-from drift import pitch, thermal
+from drift import chart, pitch, thermal
 from drift.bore_state import BoreProfile
 from drift.climate import DEFAULT_BREATH, Blowing, Breath, Phase, Room, parse_plan, plan_duration_s
 from drift.errors import OutOfRangeError
@@ -56,6 +56,8 @@ class Warmup:
         ``tolerance_cents`` of its steady state (:func:`settle_from_cold`); None beyond 10 h.
     inlet_position_m : float
         Centre of the segment where the breath enters the bore [m] (the embouchure for a jet).
+    name_warnings : tuple of drift.chart.NameWarning
+        The notes far from their names at the design condition (:func:`drift.chart.name_warnings`).
     """
 
     notes: tuple[str, ...]
@@ -74,6 +76,7 @@ class Warmup:
     reference: str = ""
     settle_from_cold_s: float | None = None
     inlet_position_m: float = 0.0
+    name_warnings: tuple = ()
 
     @property
     def steady_drift_cents(self) -> np.ndarray:
@@ -345,6 +348,7 @@ def warmup_timeline(instrument: Instrument, room: Room, plan: Sequence[Phase] | 
     trajectory = thermal.instrument_trajectory(instrument, room, plan, breath, blowing)
     states = trajectory.states(times)
     steady = thermal.instrument_steady_state(instrument, room, breath, blowing)
+    at_design = reference is None
     reference = thermal.design_profile(instrument, breath) if reference is None else reference
     notes = instrument.fingerings()
     labels = tuple(n.name if n.name else f"fingering {i + 1}" for i, n in enumerate(notes))
@@ -374,8 +378,9 @@ def warmup_timeline(instrument: Instrument, room: Room, plan: Sequence[Phase] | 
     from_cold = settle_from_cold(instrument, room, steady_hz, tolerance_cents, breath, blowing, progress)
     wall = instrument_wall(instrument)
     inlet = wall.positions_m[int(np.argmax(wall.flow_fraction > 0.0))]
+    far = chart.name_warnings(instrument, notes, ref if at_design and breath == DEFAULT_BREATH else None)
     return Warmup(labels, times, states, freqs, ref, drift, steady_hz, steady, settle, tolerance_cents,
-                  tuple(plan), instrument.name, names[0], names[1], from_cold, float(inlet))
+                  tuple(plan), instrument.name, names[0], names[1], from_cold, float(inlet), far)
 
 
 def settle_time(times_s, values, steady_values, tolerance) -> float | None:

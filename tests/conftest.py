@@ -103,10 +103,10 @@ closed = []
 
 #: A 600 mm cylinder of 10 mm bore, reed-driven with no added volume, no holes.
 CYLINDER = ('name = "tube"\nexcitation = "reed"\n[bore]\nstations_mm = [[0, 10], [600, 10]]\n'
-            '[input]\nadded_volume_mm3 = 0\n')
+            '[input]\nreed_volume_mm3 = 0\n')
 #: A 600 mm cone from 10 to 50 mm, reed-driven with no added volume, no holes.
 CONE = ('name = "cone"\nexcitation = "reed"\n[bore]\nstations_mm = [[0, 10], [600, 50]]\n'
-        '[input]\nadded_volume_mm3 = 0\n')
+        '[input]\nreed_volume_mm3 = 0\n')
 
 #: A room for climate files: 26 °C, 40 % RH, no [player] table.
 WARM_ROOM = """
@@ -144,7 +144,7 @@ def make_instrument(stations, holes=(), excitation="reed", **extra):
     from drift.instrument import parse_instrument
 
     data = {"name": "test", "excitation": excitation, "bore": {"stations_mm": stations},
-            "input": {"added_volume_mm3": 0.0} if excitation == "reed" else extra.pop("input", {})}
+            "input": {"reed_volume_mm3": 0.0} if excitation == "reed" else extra.pop("input", {})}
     if holes:
         data["hole"] = list(holes)
     data.update(extra)

@@ -187,3 +187,21 @@ def test_sweep_over_a_process_pool_equals_the_charts_one_by_one():
         np.testing.assert_allclose([r.drift_cents for r in a.rows], [r.drift_cents for r in b.rows], rtol=0,
                                    atol=1e-9)
         assert a.summary[0].adjust_m == pytest.approx(b.summary[0].adjust_m, abs=1e-12)
+
+
+def test_name_warnings_flag_beyond_half_a_semitone():
+    # Equal temperament: f = a4 2^((m - 69)/12) (ISO 16:1975 reference pitch), written out here;
+    # a note is flagged beyond 50 cents (half of the 100-cent semitone) from its name.
+    pipe = make([[0, 15], [600, 15]], note=[{"name": n} for n in ("C3", "D3", "E3", "F3")],
+                design={"a4_hz": 415.0})
+    et = {n: 415.0 * 2.0 ** ((m - 69) / 12.0) for n, m in (("C3", 48), ("D3", 50), ("E3", 52), ("F3", 53))}
+    offsets = {"C3": 49.9, "D3": -49.9, "E3": 50.1, "F3": -150.0}
+    played = [et[n] * 2.0 ** (offsets[n] / 1200.0) for n in et]
+    flagged = chart.name_warnings(pipe, pipe.notes, played)
+    assert [w.note for w in flagged] == ["E3", "F3"]
+    for w in flagged:
+        assert w.a4_hz == 415.0 and w.target_hz == pytest.approx(et[w.note], rel=1e-12)
+        assert w.offset_cents == pytest.approx(offsets[w.note], abs=1e-9)
+    # a note that does not sound (NaN) and an unnamed fingering are not flagged
+    assert chart.name_warnings(pipe, pipe.notes, [np.nan] * 4) == ()
+    assert chart.name_warnings(make([[0, 15], [600, 15]])) == ()

@@ -252,9 +252,13 @@ def test_resonances_bad_input_exits_2(cli, args, words):
 
 
 def test_bad_instrument_file_names_file_and_key(cli, write_toml):
-    path = write_toml(CYLINDER.replace("[input]\nadded_volume_mm3", "[input]\nadded_volum_mm3"), "bad.toml")
-    assert_refused(cli("resonances", path, code=None), "bad.toml", "added_volum_mm3",
-                   "did you mean 'added_volume_mm3'")
+    path = write_toml(CYLINDER.replace("[input]\nreed_volume_mm3", "[input]\nreed_volum_mm3"), "bad.toml")
+    assert_refused(cli("resonances", path, code=None), "bad.toml", "reed_volum_mm3",
+                   "did you mean 'reed_volume_mm3'")
+    # the former single volume names the two keys that replace it
+    path = write_toml(CYLINDER.replace("[input]\nreed_volume_mm3", "[input]\nadded_volume_mm3"), "old.toml")
+    assert_refused(cli("resonances", path, code=None), "old.toml", "added_volume_mm3", "reed_volume_mm3",
+                   "cavity_volume_mm3")
 
 
 # --------------------------------------------------------------------------------------------
@@ -347,3 +351,108 @@ def test_default_instrument_and_design_climate(bundled_warmups):
     assert doc["climate"].startswith("design room")
     assert doc["reference"].startswith("design condition")
     assert doc["plan"] == [{"state": "play", "minutes": 8.0}, {"state": "rest", "minutes": 3.0}]
+
+
+# --------------------------------------------------------------------------------------------
+# A4 from the instrument file, offsets from equal temperament, notes far from their names
+# --------------------------------------------------------------------------------------------
+
+#: A 600 mm reed pipe of 15 mm bore with one hole; the closed-hole note sounds near C#3 (about
+#: 139 Hz), the open one near 178 Hz: F3 (+33 cents, kept) and D3 (+333 cents, flagged).
+NAMED_PIPE = """
+name = "named pipe"
+excitation = "reed"
+[bore]
+stations_mm = [[0, 15], [600, 15]]
+[[hole]]
+name = "h1"
+position_mm = 450.0
+diameter_mm = 9.0
+[[note]]
+name = "C#3"
+closed = ["h1"]
+[[note]]
+name = "F3"
+closed = []
+[[note]]
+name = "D3"
+closed = []
+{design}
+"""
+#: MIDI numbers of the pipe's names, written out (C4 = 60, A4 = 69: MIDI 1.0 specification).
+MIDI = {"C#3": 49, "F3": 53, "D3": 50}
+
+
+def equal_hz(note, a4):
+    """Twelve-tone equal temperament from A4, f = a4 2^((m - 69)/12) (ISO 16:1975 reference pitch;
+    the definition of equal temperament), written out independently of drift.scale."""
+    return a4 * 2.0 ** ((MIDI[note] - 69) / 12.0)
+
+
+def test_chart_takes_a4_from_the_file_unless_given(cli, write_toml):
+    path = write_toml(NAMED_PIPE.format(design="[design]\na4_hz = 415"), "pipe.toml")
+    for args, a4 in (([], 415.0), (["--a4", "442"], 442.0)):
+        doc = json.loads(cli("chart", path, "--climate", "lit-stage", *args, "--format", "json").stdout)
+        assert doc["a4_hz"] == a4
+        for r in doc["rows"] + doc["reference_notes"]:
+            expected = 1200.0 * math.log2(r["frequency_hz"] / equal_hz(r["note"], a4))
+            assert r["offset_from_equal_cents"] == pytest.approx(expected, abs=1e-9)
+    table = cli("chart", path, "--climate", "lit-stage").stdout
+    assert "A4 = 415 Hz" in table.splitlines()[0]
+
+
+def test_chart_offsets_option_adds_the_table(cli, write_toml):
+    path = write_toml(NAMED_PIPE.format(design=""), "pipe.toml")
+    plain = cli("chart", path, "--climate", "lit-stage", "--climate", "winter-church").stdout
+    assert "Offset from equal temperament" not in plain
+    text = cli("chart", path, "--climate", "lit-stage", "--climate", "winter-church", "--offsets").stdout
+    assert max(len(line) for line in text.splitlines()) <= 100
+    doc = json.loads(cli("chart", path, "--climate", "lit-stage", "--climate", "winter-church",
+                         "--format", "json").stdout)
+    part = text.split("Offset from equal temperament")[1]
+    assert "reference: design" in part.splitlines()[0]
+    lines = {line.split()[0]: line.split()[1:] for line in part.splitlines()[5:8]}
+    for r in doc["reference_notes"]:
+        expected = [r["offset_from_equal_cents"]] + [
+            x["offset_from_equal_cents"] for x in doc["rows"] if x["note"] == r["note"]]
+        assert lines[r["note"]] == [f"{v:+.1f}" for v in expected]
+
+
+def test_notes_far_from_their_names_are_flagged_by_every_command(cli, write_toml):
+    path = write_toml(NAMED_PIPE.format(design=""), "pipe.toml")
+    docs = {
+        "resonances": json.loads(cli("resonances", path, "--count", "1", "--format", "json").stdout),
+        "chart": json.loads(cli("chart", path, "--climate", "lit-stage", "--format", "json").stdout),
+        "warmup": json.loads(cli("warmup", path, "--plan", "play:1", "--step", "60",
+                                 "--format", "json").stdout),
+    }
+    design = {r["note"]: r["frequency_hz"] for r in docs["chart"]["reference_notes"]}
+    offsets = {n: 1200.0 * math.log2(f / equal_hz(n, 440.0)) for n, f in design.items()}
+    # the pipe is as described: one note in tune, one within 50 cents, one far beyond
+    assert abs(offsets["C#3"]) < 10 and 20 < offsets["F3"] < 45 and offsets["D3"] > 250
+    for command, doc in docs.items():
+        (w,) = doc["name_warnings"]
+        assert w["note"] == "D3" and w["a4_hz"] == 440.0, command
+        assert w["equal_temperament_hz"] == pytest.approx(equal_hz("D3", 440.0), rel=1e-12)
+        assert w["offset_from_equal_cents"] == pytest.approx(offsets["D3"], abs=1e-6), command
+    line = f"warning: D3 is {offsets['D3']:+.0f} cents from its name at the design condition"
+    tables = {
+        "resonances": cli("resonances", path, "--count", "1").stdout,
+        "chart": cli("chart", path, "--climate", "lit-stage").stdout,
+        "warmup": cli("warmup", path, "--plan", "play:1", "--step", "60").stdout,
+    }
+    for command, text in tables.items():
+        flagged = [x for x in text.splitlines() if x.startswith("warning: ")]
+        assert len(flagged) == 1 and flagged[0].startswith(line), (command, text)
+    # CSV has no place for it: the same line goes to standard error
+    result = cli("resonances", path, "--count", "1", "--format", "csv")
+    assert result.stderr.strip().startswith("drift: " + line) and "warning" not in result.stdout
+    # --note shows one fingering: only its own warning
+    only = json.loads(cli("resonances", path, "--note", "F3", "--count", "1", "--format", "json").stdout)
+    assert only["name_warnings"] == []
+
+
+def test_bundled_instruments_sound_near_their_names(cli):
+    for name in ("cylindrical-reed", "conical-reed", "side-blown-flute"):
+        doc = json.loads(cli("resonances", name, "--count", "1", "--format", "json").stdout)
+        assert doc["name_warnings"] == [], name

@@ -17,7 +17,9 @@ def test_minimal_file_and_defaults(write_toml):
         write_toml('name = "p"\nexcitation = "reed"\n[bore]\nstations_mm = [[0, 10], [500, 10]]\n', "pipe.toml"))
     assert ins.length_m == pytest.approx(0.5)
     assert ins.reference_temperature_k == pytest.approx(293.15)
-    assert ins.input_end.added_volume_m3 == pytest.approx(1e-6)
+    # the reed: 1 cm³ at gamma p = 1.4 x 101325 Pa, no cavity
+    assert ins.input_end.reed_compliance_m3_pa == pytest.approx(1e-6 / (1.4 * 101325.0))
+    assert ins.input_end.added_volume_m3 == 0.0
     assert ins.design.a4_hz == 440.0 and ins.design.playing is False
     assert ins.design.relative_humidity == pytest.approx(0.5)
     assert ins.tuning is None and ins.material is None

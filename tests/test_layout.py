@@ -25,7 +25,7 @@ def generated():
     name = nearest_note(f_true)
     a4 = f_true / 2 ** ((note_to_midi(name) - 69) / 12)
     data = {"name": "generated", "excitation": "reed", "bore": {"stations_mm": [[0, 19], [600, 19]]},
-            "input": {"added_volume_mm3": 0.0}, "hole": [hole], "note": [{"name": name, "closed": []}]}
+            "input": {"reed_volume_mm3": 0.0}, "hole": [hole], "note": [{"name": name, "closed": []}]}
     from drift.instrument import parse_instrument
 
     ins = parse_instrument(data, "generated.toml")

@@ -41,6 +41,15 @@ def scale_notes(reg1, reg2, hole_order, register_hole):
     return notes
 
 
+def cone_tip_mm3(x0_mm, d0_mm, x1_mm, d1_mm) -> float:
+    """Volume [mm^3] of the missing tip of the cone through diameters d0 at x0 and d1 at x1:
+    (1/3) pi r0^2 h, h = r0 (x1 - x0) / (r1 - r0) the distance from the apex to x0."""
+    import math
+
+    r0, r1 = d0_mm / 2.0, d1_mm / 2.0
+    return math.pi * r0**2 * (r0 * (x1_mm - x0_mm) / (r1 - r0)) / 3.0
+
+
 def cylindrical_reed():
     # holes listed from the top (input end) down; tone holes t1..t8, register hole "register"
     tone = [f"t{i}" for i in range(1, 9)]
@@ -54,7 +63,7 @@ def cylindrical_reed():
         "material": "tropical_hardwood",
         "wall_mm": 6.0,
         "bore": {"stations_mm": [[0, 14.8], [560, 14.8], [595, 17.5], [625, 25.0], [650, 42.0]]},
-        "input": {"added_volume_mm3": 1000.0},
+        "input": {"reed_volume_mm3": 1000.0, "cavity_volume_mm3": 0.0},
         "design": {"temperature_c": 22.0, "relative_humidity_pct": 45, "playing": True},
         "tuning": {"position_mm": 65.0, "min_change_mm": -2.0, "max_change_mm": 6.0},
         "hole": [{"name": "register", "position_mm": 150.0, "diameter_mm": 3.0, "chimney_mm": 12.0}]
@@ -77,7 +86,11 @@ def conical_reed():
         "material": "yellow_brass",
         "wall_mm": 0.5,
         "bore": {"stations_mm": [[0, 7.0], [640, 47.0], [675, 54.0], [700, 70.0]]},
-        "input": {"added_volume_mm3": 1450.0},
+        # the mouthpiece stands for the missing tip of the cone (geometry): its cavity plus the
+        # reed's equivalent volume at sea level make up the tip's volume, as the octaves of a
+        # conical bore need (common practice, from memory)
+        "input": {"reed_volume_mm3": 1000.0,
+                  "cavity_volume_mm3": round(cone_tip_mm3(0.0, 7.0, 640.0, 47.0) - 1000.0, 1)},
         "design": {"temperature_c": 22.0, "relative_humidity_pct": 45, "playing": True},
         "tuning": {"position_mm": 30.0, "min_change_mm": -5.0, "max_change_mm": 10.0},
         "hole": [{"name": "octave", "position_mm": 160.0, "diameter_mm": 2.5, "chimney_mm": 4.0}]
