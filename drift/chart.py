@@ -161,7 +161,7 @@ def design_climate(instrument: Instrument) -> Climate:
 
 def frequencies(instrument: Instrument, profile: BoreProfile) -> np.ndarray:
     """Playing frequency [Hz] of every note of the instrument with the bore air of ``profile``."""
-    return np.array([n.frequency_hz for n in pitch.note_frequencies(instrument, profile)])
+    return pitch.frequencies_hz(instrument, [profile])[0]
 
 
 def _free_joint(instrument: Instrument) -> Instrument:

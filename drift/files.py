@@ -38,15 +38,15 @@ def read_toml_text(text: str, label: str, what: str = "file") -> dict:
         raise InputFileError(f"{label}: not valid TOML: {error}") from None
 
 
-def choose(name: str, options, what: str) -> str:
+def choose(name: str, options, what: str, listing: str = "Allowed", more: str = "") -> str:
     """``name`` if it is one of ``options``; else InputFileError naming ``what``, a did-you-mean
-    suggestion and the allowed names."""
+    suggestion and the names (``listing: a, b, c`` followed by ``more``)."""
     options = sorted(options)
     if name in options:
         return name
     close = difflib.get_close_matches(name, options, n=1)
     hint = f" (did you mean '{close[0]}'?)" if close else ""
-    raise InputFileError(f"unknown {what} '{name}'{hint}. Allowed: {', '.join(options)}")
+    raise InputFileError(f"unknown {what} '{name}'{hint}. {listing}: {', '.join(options)}{more}")
 
 
 def bundled_folder(package: str, fallback: Path):
@@ -79,12 +79,7 @@ def load_named(source: str | Path, folder, label_prefix: str, what: str) -> tupl
     if path.is_file() or text.endswith(".toml") or "/" in text:
         return read_toml(path, f"{what} file"), str(path)
     files = bundled_files(folder)
-    if text not in files:
-        close = difflib.get_close_matches(text, list(files), n=1)
-        hint = f" (did you mean '{close[0]}'?)" if close else ""
-        raise InputFileError(f"unknown {what} '{text}'{hint}. Bundled: {', '.join(sorted(files))}; "
-                             f"or give the path of a .toml file")
-    resource = files[text]
+    resource = files[choose(text, files, what, "Bundled", "; or give the path of a .toml file")]
     label = f"{label_prefix}/{resource.name}"
     return read_toml_text(resource.read_text(encoding="utf-8"), label, what), label
 

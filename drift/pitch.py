@@ -468,3 +468,10 @@ def state_frequencies(instruments, profiles, lossless: bool = False,
         for k, res in zip(members, found):
             out[k] = _played(notes, res)
     return out
+
+
+def frequencies_hz(instrument: Instrument, profiles) -> np.ndarray:
+    """Playing frequency [Hz] of each fingering (columns) of one instrument in each bore state
+    (rows), all states searched together (:func:`state_frequencies`)."""
+    found = state_frequencies([instrument] * len(profiles), list(profiles))
+    return np.array(found).reshape(len(profiles), len(instrument.fingerings()))

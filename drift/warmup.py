@@ -126,13 +126,6 @@ KNOT_TOLERANCE_CENTS = 0.02
 FIRST_KNOTS = (0.0, 1 / 64, 1 / 16, 1 / 4, 1 / 2, 1.0)
 
 
-def frequencies_hz(instrument: Instrument, profiles) -> np.ndarray:
-    """Playing frequency [Hz] of each fingering (columns) in each bore state (rows), all states
-    searched together (:func:`drift.pitch.state_frequencies`)."""
-    found = pitch.state_frequencies([instrument] * len(profiles), list(profiles))
-    return np.array(found).reshape(len(profiles), len(instrument.fingerings()))
-
-
 def pchip(x, y, x_new) -> np.ndarray:
     """Monotone piecewise-cubic Hermite interpolation of ``y`` (n, ...) at ``x`` (n,) ascending,
     evaluated at ``x_new``.
@@ -259,7 +252,7 @@ def settle_from_cold(instrument: Instrument, room: Room, steady_hz, tolerance_ce
                                                blowing)
 
     def gaps(times):
-        f = frequencies_hz(instrument, [trajectory.state(float(t)).profile for t in times])
+        f = pitch.frequencies_hz(instrument, [trajectory.state(float(t)).profile for t in times])
         if progress is not None:
             progress(len(times))
         return np.nanmax(np.abs(cents(f, steady_hz[None, :])), axis=1) - tolerance_cents
@@ -353,7 +346,7 @@ def warmup_timeline(instrument: Instrument, room: Room, plan: Sequence[Phase] | 
     notes = instrument.fingerings()
     labels = tuple(n.name if n.name else f"fingering {i + 1}" for i, n in enumerate(notes))
 
-    ref, steady_hz = frequencies_hz(instrument, [reference, steady.profile])
+    ref, steady_hz = pitch.frequencies_hz(instrument, [reference, steady.profile])
     if progress is not None:
         progress(2)
     freqs = np.empty((len(times), len(notes)))
@@ -364,7 +357,7 @@ def warmup_timeline(instrument: Instrument, room: Room, plan: Sequence[Phase] | 
             continue
 
         def pitch_at(ts, index=index):
-            return frequencies_hz(instrument, [trajectory.state(t, index).profile for t in ts])
+            return pitch.frequencies_hz(instrument, [trajectory.state(t, index).profile for t in ts])
 
         freqs[rows] = phase_pitch(pitch_at, trajectory.starts_s[index], times[rows], progress=progress)
     drift = cents(freqs, ref[None, :])

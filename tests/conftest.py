@@ -295,3 +295,27 @@ def load_pitch_reference():
     module = importlib.util.module_from_spec(spec)
     spec.loader.exec_module(module)
     return module
+
+
+def _dry_profile():
+    from drift.bore_state import BoreProfile
+    from drift.climate import Room
+
+    return BoreProfile.uniform(Room(293.15, relative_humidity=0.0))
+
+
+#: Uniform dry air at 20 °C and sea level, walls at 20 °C: the bore of the analytic checks.
+DRY_PROFILE = _dry_profile()
+
+
+@pytest.fixture(scope="session")
+def room_air():
+    """The gas properties of :data:`DRY_PROFILE` (arrays of one value)."""
+    return DRY_PROFILE.air_at([0.0]).properties
+
+
+def first_resonances(inst, count=5, **kw):
+    """The first ``count`` resonances [Hz] of an instrument's first fingering in :data:`DRY_PROFILE`."""
+    from drift import pitch
+
+    return pitch.find_resonances(inst, DRY_PROFILE, count=count, **kw).frequencies_hz[0]

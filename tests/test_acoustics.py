@@ -8,6 +8,8 @@ from hypothesis import given, settings, strategies as st
 from scipy import special
 from scipy.optimize import brentq
 
+from conftest import DRY_PROFILE as PROFILE
+from conftest import first_resonances as first
 from conftest import make_instrument as make
 from drift import acoustics, instrument, pitch, thermal
 from drift.climate import Room, bundled_climates
@@ -16,17 +18,6 @@ from drift.scale import cents
 from drift.bore_state import BoreProfile
 from references import propagation_keefe1984, transfer_matrices
 
-ROOM = Room(293.15, relative_humidity=0.0)
-PROFILE = BoreProfile.uniform(ROOM)
-
-
-@pytest.fixture(scope="module")
-def room_air():
-    return PROFILE.air_at([0.0]).properties
-
-
-def first(inst, count=5, **kw):
-    return pitch.find_resonances(inst, PROFILE, count=count, **kw).frequencies_hz[0]
 
 
 def test_closed_open_cylinder_levine_schwinger(room_air):

@@ -7,6 +7,8 @@ import numpy as np
 import pytest
 
 from conftest import BUNDLED, load_pitch_reference
+from conftest import DRY_PROFILE as PROFILE
+from conftest import first_resonances as first
 from conftest import make_instrument as make
 from drift import chart, instrument, pitch, thermal
 from drift.climate import Room, load_climate
@@ -119,16 +121,6 @@ def test_refinement_reaches_hundredth_of_a_cent(bundled_instruments, design_prof
 REFERENCE = load_pitch_reference()
 #: The fast search must match the reference within this [cent] (issue 9's contract).
 AGREEMENT_CENTS = 0.05
-PROFILE = BoreProfile.uniform(Room(293.15, relative_humidity=0.0))
-
-
-@pytest.fixture(scope="module")
-def room_air():
-    return PROFILE.air_at([0.0]).properties
-
-
-def first(inst, count=5, **kw):
-    return pitch.find_resonances(inst, PROFILE, count=count, **kw).frequencies_hz[0]
 
 
 def test_refine_extrema_on_wide_brackets(room_air):
