@@ -235,6 +235,8 @@ def test_zwikker_kosten_against_scipy_bessel_functions(room_air):
 
 
 def test_stacked_states_give_each_state_own_impedance():
+    # Consistency of two code paths (not an outside check): a stack of bore states gives each
+    # state the impedance its own network gives.
     ins = instrument.load_instrument("conical-reed")
     profiles = [thermal.climate_profile(ins, c) for c in bundled_climates()[:3]]
     nets = [pitch.bore_network(ins, p) for p in profiles]

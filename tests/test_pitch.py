@@ -20,8 +20,9 @@ from references import nearest_note
 
 
 def test_bundled_instruments_in_equal_temperament_at_design(design_notes):
-    # The layouts were tuned to A4 = 440 Hz (ISO 16) at their [design] condition: every note
-    # within +-10 cent of equal temperament there.
+    # A regression check of the bundled files, not an outside check: drift's own layout solver
+    # tuned them to A4 = 440 Hz (ISO 16) at their [design] condition, so every note must stay
+    # within +-10 cent of equal temperament there while the model and the files agree.
     assert sorted(design_notes) == sorted(BUNDLED)
     for name, (ins, notes) in design_notes.items():
         assert len(notes) == len(ins.notes)
