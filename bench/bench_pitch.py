@@ -19,7 +19,7 @@ import time
 
 import numpy as np
 
-from drift import acoustics, chart, pitch, thermal
+from drift import acoustics, chart, network, pitch, thermal
 from drift.climate import bundled_climates
 from drift.errors import OutOfRangeError
 from drift.instrument import bundled_instruments, load_instrument
@@ -44,7 +44,7 @@ class ReferenceNetwork:
         self.r_mean = 0.5 * (segments.radius_in_m + segments.radius_out_m)
         self.is_cone = np.abs(segments.radius_out_m - segments.radius_in_m) > 1e-9 * self.r_mean
         self.n_holes = len(segments.hole_segment)
-        self.hole_air = acoustics.take_segments(segment_air, segments.hole_segment) if self.n_holes else None
+        self.hole_air = network.take_segments(segment_air, segments.hole_segment) if self.n_holes else None
         self.holes_at = [[] for _ in range(segments.n)]
         for h, s in enumerate(segments.hole_segment):
             self.holes_at[int(s)].append(h)
@@ -121,8 +121,6 @@ class ReferenceNetwork:
         load = z_par + 1j * omega * rho * ti / se
         z_hole = (ca * load + cb) / (cc * load + cd)
         to = seg.embouchure_outer_correction_m
-        if to is None:
-            to = acoustics.HOLE_OUTER_END_CORRECTION * be
         k = omega / c0
         zh = rho * c0 / se
         z_out = zh * (0.25 * (k * be) ** 2 * (0.0 if self.lossless else 1.0) + 1j * k * to)

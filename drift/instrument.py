@@ -38,7 +38,7 @@ INPUT_KEYS = {
     "reed": ("reed_volume_mm3", "cavity_volume_mm3"),
     "lips": ("cup_volume_mm3", "throat_diameter_mm", "throat_length_mm", "backbore_length_mm"),
     "jet": ("embouchure_position_mm", "embouchure_diameter_mm", "embouchure_chimney_mm",
-            "embouchure_outer_correction_mm"),
+            "embouchure_outer_correction_mm", "lip_cover_pct"),
 }
 
 #: Equivalent volume of a reed's compliance and pumped flow [m^3] at the reed's reference
@@ -63,6 +63,11 @@ DEFAULT_BACKBORE_LENGTH = 60.0e-3
 #: and chimney height (wall plus lip plate) [m].
 DEFAULT_EMBOUCHURE_DIAMETER = 10.0e-3
 DEFAULT_EMBOUCHURE_CHIMNEY = 5.0e-3
+#: Share of the embouchure hole's area the lower lip covers [-]: about a quarter (common
+#: practice, from memory; players cover more to flatten and less to sharpen).
+DEFAULT_LIP_COVER = 0.25
+#: Largest lip cover accepted [-] (beyond it the hole is mostly shut and the jet model fails).
+MAX_LIP_COVER = 0.7
 #: Wall thickness when neither the file nor its material gives one [m] (common practice for
 #: wooden and plastic woodwind bodies).
 DEFAULT_WALL = 3.0e-3
@@ -169,8 +174,10 @@ class InputEnd:
         bore's first diameter, ``backbore_length_m``) lie before position 0.
     jet : the embouchure hole, centre at ``embouchure_position_m`` [m] from the closed end
         (position 0; the bore before it is the cavity), of ``embouchure_diameter_m`` and
-        ``embouchure_chimney_m`` [m]; ``embouchure_outer_correction_m`` [m] is the outer end
-        correction (None: the model's hole default; larger when the lip covers the hole).
+        ``embouchure_chimney_m`` [m]; ``lip_cover`` [-] is the share of its area the lower lip
+        covers, which sets its outer end correction
+        (:func:`drift.acoustics.embouchure_outer_correction`) unless
+        ``embouchure_outer_correction_m`` [m] gives that correction directly.
     """
 
     kind: str
@@ -183,6 +190,7 @@ class InputEnd:
     embouchure_diameter_m: float = 0.0
     embouchure_chimney_m: float = 0.0
     embouchure_outer_correction_m: float | None = None
+    lip_cover: float = 0.0
 
 
 @dataclass(frozen=True)
@@ -465,9 +473,14 @@ def _input_end(top: Table, excitation: str, stations: np.ndarray) -> InputEnd:
                    low=0.5, high=dia_max, unit="mm (at most the bore)")
     chim = t.number("embouchure_chimney_mm", DEFAULT_EMBOUCHURE_CHIMNEY * 1e3, low=0.0, high=50.0, unit="mm")
     outer = t.number("embouchure_outer_correction_mm", None, low=0.0, high=100.0, unit="mm")
+    cover = t.number("lip_cover_pct", None, low=0.0, high=MAX_LIP_COVER * 100, unit="%")
+    if outer is not None and cover is not None:
+        t.fail("lip_cover_pct", "and embouchure_outer_correction_mm both set the embouchure's outer end "
+                                "correction: give one of them")
     return InputEnd("jet", embouchure_position_m=pos * 1e-3, embouchure_diameter_m=dia * 1e-3,
                     embouchure_chimney_m=chim * 1e-3,
-                    embouchure_outer_correction_m=None if outer is None else outer * 1e-3)
+                    embouchure_outer_correction_m=None if outer is None else outer * 1e-3,
+                    lip_cover=DEFAULT_LIP_COVER if cover is None else cover / 100)
 
 
 def _bundled_dir():
@@ -560,6 +573,8 @@ def to_toml(instrument: Instrument, header: str = "") -> str:
                   f"embouchure_chimney_mm = {_fmt(inp.embouchure_chimney_m * 1e3)}"]
         if inp.embouchure_outer_correction_m is not None:
             lines.append(f"embouchure_outer_correction_mm = {_fmt(inp.embouchure_outer_correction_m * 1e3)}")
+        else:
+            lines.append(f"lip_cover_pct = {_fmt(inp.lip_cover * 100, 1)}")
     d = ins.design
     lines += ["", "[design]",
               f"temperature_c = {_fmt(d.temperature_k - ZERO_CELSIUS, 2)}",

@@ -22,7 +22,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from drift import acoustics
+from drift.network import Network
 from drift.climate import Room
 from drift.constants import SEGMENT_LENGTH_M
 from drift.instrument import Instrument, Note
@@ -61,13 +61,13 @@ def _objective(z, minima):
         return z if minima else 1.0 / z
 
 
-def search_resonances(network: acoustics.Network, open_holes, counts, minima: bool = False) -> list:
-    """The first resonances [Hz] of each fingering of a :class:`drift.acoustics.Network`.
+def search_resonances(network: Network, open_holes, counts, minima: bool = False) -> list:
+    """The first resonances [Hz] of each fingering of a :class:`drift.network.Network`.
 
     Parameters
     ----------
-    network : drift.acoustics.Network
-        One bore state, or several (:meth:`drift.acoustics.Network.stack`) searched together.
+    network : drift.network.Network
+        One bore state, or several (:meth:`drift.network.Network.stack`) searched together.
     open_holes : bool array (F, H)
     counts : sequence of int (F,)
         How many resonances to find for each fingering.
@@ -83,7 +83,7 @@ def search_resonances(network: acoustics.Network, open_holes, counts, minima: bo
     -----
     Coarse to fine. |Z| is sampled on the 25-cent lattice 20 Hz * 2^(k/48)
     (:data:`GRID_STEP_OCTAVES`), first up to 2n c/2L for the highest register n asked (c/2L from
-    :meth:`drift.acoustics.Network.resonance_spacing_hz`: the whole bore with the input's added
+    :meth:`drift.network.Network.resonance_spacing_hz`: the whole bore with the input's added
     volume, at its lowest speed of sound), then an octave at a time, only for the fingerings
     still short of resonances, up to 15 kHz; every state and fingering in one impedance
     evaluation per block. Every interior local extremum of the samples (lower than the sample
@@ -132,13 +132,13 @@ def search_resonances(network: acoustics.Network, open_holes, counts, minima: bo
     return out if network.batched else out[0]
 
 
-def refine_extrema(network: acoustics.Network, open_rows, x1, x2, x3, minima: bool = False,
+def refine_extrema(network: Network, open_rows, x1, x2, x3, minima: bool = False,
                    state=None) -> np.ndarray:
     """Refine extrema of |Z| [Hz] inside brackets x1 < x2 < x3 (one fingering row per bracket).
 
     Parameters
     ----------
-    network : drift.acoustics.Network
+    network : drift.network.Network
     open_rows : bool array (K, H)
         The fingering of each bracket.
     x1, x2, x3 : arrays (K,) [Hz]
@@ -295,8 +295,8 @@ class NoteFrequency:
 
 def bore_network(instrument: Instrument, profile: BoreProfile, lossless: bool = False,
                  max_segment_m: float = SEGMENT_LENGTH_M,
-                 radiation: str = "norris-sheng-1989") -> acoustics.Network:
-    """The :class:`drift.acoustics.Network` of an instrument filled with the air of ``profile``.
+                 radiation: str = "norris-sheng-1989") -> Network:
+    """The :class:`drift.network.Network` of an instrument filled with the air of ``profile``.
 
     The bore is discretised and expanded by the temperature of its wall
     (:func:`drift.segments.expanded_segments`, from ``profile.wall_temperature_at``), and the air
@@ -305,7 +305,7 @@ def bore_network(instrument: Instrument, profile: BoreProfile, lossless: bool = 
     """
     segs = expanded_segments(instrument, profile.wall_temperature_at, max_segment_m)
     state = profile.air_at(np.clip(segs.midpoints_m, 0.0, None))
-    return acoustics.Network(segs, state.properties, lossless=lossless, radiation=radiation)
+    return Network(segs, state.properties, lossless=lossless, radiation=radiation)
 
 
 @dataclass(frozen=True)
@@ -377,7 +377,7 @@ def find_resonances(instrument: Instrument, air: Room | BoreProfile, count: int 
 
 def note_frequencies(instrument: Instrument, profile: BoreProfile, lossless: bool = False, notes=None,
                      max_segment_m: float = SEGMENT_LENGTH_M, a4_hz: float | None = None,
-                     network: acoustics.Network | None = None) -> list[NoteFrequency]:
+                     network: Network | None = None) -> list[NoteFrequency]:
     """Playing frequency of every fingering of ``instrument`` with the bore air of ``profile``.
 
     Parameters
@@ -393,7 +393,7 @@ def note_frequencies(instrument: Instrument, profile: BoreProfile, lossless: boo
         Longest segment of the discretised bore [m] (default 0.02).
     a4_hz : float, optional
         Reference pitch of the targets [Hz] (default: the instrument's design A4).
-    network : drift.acoustics.Network, optional
+    network : drift.network.Network, optional
         A prebuilt network (skips discretisation and air evaluation).
 
     Returns
@@ -448,7 +448,7 @@ def state_frequencies(instruments, profiles, lossless: bool = False,
     -----
     The pairs whose networks share a topology and fingerings (the same instrument in several
     climates, or after the same kind of joint change) are stacked
-    (:meth:`drift.acoustics.Network.stack`) and searched together
+    (:meth:`drift.network.Network.stack`) and searched together
     (:func:`search_resonances`): one pass along the bore serves them all.
     """
     nets = [bore_network(i, p, lossless, max_segment_m) for i, p in zip(instruments, profiles)]
@@ -462,7 +462,7 @@ def state_frequencies(instruments, profiles, lossless: bool = False,
     for members in groups.values():
         ins = instruments[members[0]]
         notes = ins.fingerings()
-        net = acoustics.Network.stack([nets[k] for k in members])
+        net = Network.stack([nets[k] for k in members])
         found = search_resonances(net, ins.open_mask(notes), [n.register for n in notes],
                                   minima=ins.excitation == "jet")
         for k, res in zip(members, found):

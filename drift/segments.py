@@ -16,6 +16,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from drift import acoustics
 from drift.constants import SEGMENT_LENGTH_M
 from drift.errors import OutOfRangeError
 from drift.instrument import DEFAULT_REFERENCE_TEMPERATURE, Instrument
@@ -54,7 +55,8 @@ class Segments:
     reed_compliance_m3_pa : float
         The reed's compliance in parallel at the input [m^3/Pa] (:class:`drift.instrument.InputEnd`).
     embouchure_radius_m, embouchure_chimney_m : float [m]
-    embouchure_outer_correction_m : float or None [m]
+    embouchure_outer_correction_m : float [m]
+        The embouchure's outer end correction, as a length of the hole (lip cover included).
     """
 
     start_m: np.ndarray
@@ -72,7 +74,7 @@ class Segments:
     reed_compliance_m3_pa: float = 0.0
     embouchure_radius_m: float = 0.0
     embouchure_chimney_m: float = 0.0
-    embouchure_outer_correction_m: float | None = None
+    embouchure_outer_correction_m: float = 0.0
 
     @property
     def midpoints_m(self) -> np.ndarray:
@@ -111,6 +113,7 @@ class Segments:
             added_volume_m3=self.added_volume_m3 * float(rad[self.n_cavity]) ** 3,
             embouchure_radius_m=self.embouchure_radius_m * float(rad[self.n_cavity]),
             embouchure_chimney_m=self.embouchure_chimney_m * float(rad[self.n_cavity]),
+            embouchure_outer_correction_m=self.embouchure_outer_correction_m * float(rad[self.n_cavity]),
         )
 
 
@@ -177,9 +180,13 @@ def discretise(instrument: Instrument, max_segment_m: float = SEGMENT_LENGTH_M) 
         length = np.concatenate([pre_len, length])
         r_in = np.concatenate([pre_in, r_in])
         r_out = np.concatenate([pre_out, r_out])
-    n_cavity = 0
+    n_cavity, outer = 0, 0.0
     if instrument.excitation == "jet":
         n_cavity = int(np.searchsorted(start, inp.embouchure_position_m - 1e-12))
+        outer = inp.embouchure_outer_correction_m
+        if outer is None:
+            outer = float(acoustics.embouchure_outer_correction(
+                inp.embouchure_diameter_m / 2, float(np.asarray(r_in)[n_cavity]), inp.embouchure_chimney_m, inp.lip_cover))
     hole_segment = np.array([int(np.argmin(np.abs(start - h.position_m))) for h in instrument.holes],
                             dtype=int)
     holes = instrument.holes
@@ -199,7 +206,7 @@ def discretise(instrument: Instrument, max_segment_m: float = SEGMENT_LENGTH_M) 
         reed_compliance_m3_pa=inp.reed_compliance_m3_pa,
         embouchure_radius_m=inp.embouchure_diameter_m / 2,
         embouchure_chimney_m=inp.embouchure_chimney_m,
-        embouchure_outer_correction_m=inp.embouchure_outer_correction_m,
+        embouchure_outer_correction_m=outer,
     )
 
 

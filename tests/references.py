@@ -57,7 +57,7 @@ def propagation_keefe1984(frequency_hz, radius_m, sound_speed, density, viscosit
 
 
 def transfer_matrices(network, frequency_hz):
-    """(A, B, C, D) of every segment of a :class:`drift.acoustics.Network` at frequencies [Hz],
+    """(A, B, C, D) of every segment of a :class:`drift.network.Network` at frequencies [Hz],
     arrays (n, N): the network's own matrices, exposed for checks."""
     f = np.atleast_1d(np.asarray(frequency_hz, dtype=float))
     return network._point_matrices(np.zeros(f.shape, dtype=int), f)

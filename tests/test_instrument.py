@@ -142,6 +142,21 @@ def test_design_room_and_lip_and_jet_defaults(write_toml):
         'name = "j"\nexcitation = "jet"\n[bore]\nstations_mm = [[0, 8], [600, 8]]\n'
         '[input]\nembouchure_position_mm = 17\n', "j.toml"))
     assert jet.input_end.embouchure_diameter_m == pytest.approx(0.008)
+    assert jet.input_end.lip_cover == pytest.approx(instrument.DEFAULT_LIP_COVER)
     assert jet.wall_material.name == materials.DEFAULT_MATERIALS["jet"]
     changed = dataclasses.replace(jet, material="abs")
     assert changed.wall_material.name == "abs"
+
+
+@pytest.mark.parametrize("extra, words", [
+    ("lip_cover_pct = 80", ["j.toml", "lip_cover_pct", "0 to 70"]),
+    ("lip_cover_pct = 30\nembouchure_outer_correction_mm = 4", ["lip_cover_pct", "embouchure_outer_correction_mm",
+                                                                 "give one"]),
+])
+def test_lip_cover_is_checked(write_toml, extra, words):
+    path = write_toml('name = "j"\nexcitation = "jet"\n[bore]\nstations_mm = [[0, 19], [600, 19]]\n'
+                      f'[input]\nembouchure_position_mm = 17\n{extra}\n', "j.toml")
+    with pytest.raises(InputFileError) as info:
+        instrument.load_instrument(path)
+    for word in words:
+        assert word in str(info.value)

@@ -16,7 +16,7 @@ PACKAGE = Path(__file__).resolve().parent.parent / "drift"
 LAYERS = {
     "base": ["constants", "errors", "files"],
     "data": ["scale", "materials", "climate", "instrument"],
-    "physics": ["gas_table", "air", "heat_transfer", "acoustics"],
+    "physics": ["gas_table", "air", "heat_transfer", "acoustics", "network"],
     "segments": ["segments"],
     "thermal": ["bore_state", "thermal"],
     "pitch": ["pitch"],

@@ -20,6 +20,9 @@ Prints, as markdown table rows:
    the first 10 cm of the hardwood cylinder with a breath at 33 degC; w^2 rho c / k of an 8 mm
    hardwood wall; and, for section 4 "The drift chart", the mean pitch change per micrometre at
    each instrument's tuning joint (from a 1 mm change).
+4. Section 2 "Acoustics": the outer end correction of the bundled instruments' holes in hole radii
+   (``acoustics.outer_end_correction``), and the flute's notes at its design room against its own
+   tuning when the lip covers 0, 15, 35 or 45 % of the embouchure hole instead of the file's.
 
 Only table 1 and the thermal loose figures feed the doc as they are; the bundled-instrument table,
 the rest behaviour and the joint figure also depend on the acoustics and the instrument files.
@@ -30,13 +33,15 @@ Uses only public functions of drift; takes about 30 s on one core.
 
 from __future__ import annotations
 
+import dataclasses
 import math
 
 import numpy as np
 
-from drift import chart, thermal
+from drift import acoustics, chart, pitch, segments, thermal
+from drift.bore_state import BoreProfile
 from drift.climate import Breath, Phase, Room, default_blowing
-from drift.instrument import bundled_instruments
+from drift.instrument import bundled_instruments, load_instrument
 from drift.materials import material
 from drift.scale import cents
 from drift.segments import flow_fraction_from_exits, instrument_wall, wall_from_stations
@@ -215,6 +220,34 @@ def main() -> None:
     wood = material("tropical_hardwood")
     crossing = 0.008**2 * wood.volumetric_heat_capacity / wood.conductivity_across
     print(f"8 mm hardwood wall: w^2 rho c / k (across the grain) = {crossing / 60:.1f} min")
+    print()
+    print("Acoustics:")
+    for line in acoustic_lines():
+        print(line)
+
+
+
+def acoustic_lines() -> list[str]:
+    lines = []
+    for ins in bundled_instruments():
+        if not ins.holes:
+            continue
+        segs = segments.discretise(ins)
+        ratio = acoustics.outer_end_correction(segs.hole_radius_m, segs.hole_bore_radius_m,
+                                               segs.hole_chimney_m) / segs.hole_radius_m
+        lines.append(f"{ins.name}: hole outer end corrections {ratio.min():.3f} to {ratio.max():.3f} hole radii")
+    flute = load_instrument("side-blown-flute")
+    profile = BoreProfile.uniform(flute.design.room())
+
+    def played(cover):
+        changed = dataclasses.replace(flute, input_end=dataclasses.replace(flute.input_end, lip_cover=cover))
+        return np.array([n.frequency_hz for n in pitch.note_frequencies(changed, profile)])
+    base = played(flute.input_end.lip_cover)
+    for cover in (0.0, 0.15, 0.35, 0.45):
+        d = cents(played(cover), base)
+        lines.append(f"side-blown-flute, lip cover {cover:.0%} instead of {flute.input_end.lip_cover:.0%}: "
+                     f"mean {d.mean():+.2f} cents, lowest note {d[0]:+.2f}, range {d.min():+.2f} to {d.max():+.2f}")
+    return lines
 
 
 if __name__ == "__main__":
