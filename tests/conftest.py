@@ -6,7 +6,9 @@ test edits them.
 """
 
 import json
+import os
 
+import numpy as np
 import pytest
 from hypothesis import settings
 
@@ -319,3 +321,57 @@ def first_resonances(inst, count=5, **kw):
     from drift import pitch
 
     return pitch.find_resonances(inst, DRY_PROFILE, count=count, **kw).frequencies_hz[0]
+
+
+# --------------------------------------------------------------------------------------------
+# Outside checks: every comparison with a published source goes through ``outside.check``, which
+# asserts it and records it; tools/validation_report.py runs the suite with DRIFT_OUTSIDE_RECORDS
+# set to a file name and writes docs/validation.md from the records.
+# --------------------------------------------------------------------------------------------
+
+#: The records of this session: one dict per ``outside.check`` call.
+OUTSIDE_RECORDS = []
+
+
+class OutsideCheck:
+    """Compares a measured quantity with a published reference, asserts it and records it."""
+
+    def __init__(self, test_id):
+        self.test_id = test_id
+
+    def check(self, measured, expected, *, quantity, source, rel=None, abs=None, unit=""):
+        """Assert |measured - expected| <= abs, or |measured / expected - 1| <= rel, everywhere.
+
+        ``quantity`` says what is compared, ``source`` the publication (authors, year, table or
+        equation; "from memory" where the value was recalled), ``unit`` the unit of ``expected``.
+        The deviation recorded is the largest over the values.
+        """
+        if (rel is None) == (abs is None):
+            raise TypeError("give exactly one of rel and abs")
+        m = np.asarray(measured, dtype=float)
+        e = np.asarray(expected, dtype=float)
+        if rel is not None:
+            deviation = float(np.max(np.abs(m / e - 1.0)))
+            tolerance, kind = rel, "relative"
+        else:
+            deviation = float(np.max(np.abs(m - e)))
+            tolerance, kind = abs, unit
+        OUTSIDE_RECORDS.append({"test": self.test_id, "quantity": quantity, "source": source, "unit": unit,
+                                "reference_min": float(e.min()), "reference_max": float(e.max()),
+                                "count": int(e.size), "tolerance": tolerance, "kind": kind,
+                                "deviation": deviation})
+        assert np.all(np.isfinite(m)) and deviation <= tolerance, (
+            f"{quantity}: deviation {deviation:.3g} ({kind}) beyond {tolerance:.3g}; source: {source}")
+
+
+@pytest.fixture
+def outside(request):
+    """An :class:`OutsideCheck` for this test."""
+    return OutsideCheck(request.node.nodeid)
+
+
+def pytest_sessionfinish(session, exitstatus):
+    path = os.environ.get("DRIFT_OUTSIDE_RECORDS")
+    if path:
+        with open(path, "w", encoding="utf-8") as f:
+            json.dump(OUTSIDE_RECORDS, f, indent=1)
