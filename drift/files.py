@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import difflib
 import math
+import stat
 import tomllib
 from importlib import resources
 from pathlib import Path
@@ -16,26 +17,52 @@ from pathlib import Path
 from drift.errors import InputFileError
 
 
+#: Largest input file read [bytes]: instrument, climate and materials files are a few kB.
+MAX_FILE_BYTES = 1_000_000
+
+
 def read_toml(path: str | Path, what: str = "file") -> dict:
-    """Parse a TOML file; unreadable or malformed files raise InputFileError naming the file."""
+    """Parse a TOML file; unreadable or malformed files raise InputFileError naming the file.
+
+    Only regular files are read (a folder, device or pipe is refused before reading, so nothing
+    blocks), at most :data:`MAX_FILE_BYTES`, decoded as UTF-8.
+    """
     path = Path(path)
     try:
+        info = path.stat()
+        if stat.S_ISDIR(info.st_mode):
+            raise InputFileError(f"{path}: is a folder; give a {what} (a .toml file)")
+        if not stat.S_ISREG(info.st_mode):
+            raise InputFileError(f"{path}: is not a regular file (a device or pipe); give a {what} (a .toml file)")
         with path.open("rb") as stream:
-            return tomllib.load(stream)
+            raw = stream.read(MAX_FILE_BYTES + 1)
     except FileNotFoundError:
         raise InputFileError(f"{path}: no such {what}") from None
     except OSError as error:
-        raise InputFileError(f"{path}: cannot read the {what}: {error.strerror}") from None
-    except tomllib.TOMLDecodeError as error:
-        raise InputFileError(f"{path}: not valid TOML: {error}") from None
+        raise InputFileError(f"{path}: cannot read the {what}: {error.strerror or error}") from None
+    if len(raw) > MAX_FILE_BYTES:
+        raise InputFileError(f"{path}: is larger than {MAX_FILE_BYTES // 1_000_000} MB; a {what} is a short text file")
+    try:
+        text = raw.decode("utf-8")
+    except UnicodeDecodeError as error:
+        raise InputFileError(f"{path}: is not UTF-8 text (byte {error.start + 1}); save it as UTF-8") from None
+    return read_toml_text(text, str(path), what)
 
 
 def read_toml_text(text: str, label: str, what: str = "file") -> dict:
-    """Parse TOML text (a bundled file's contents); a malformed text raises InputFileError."""
+    """Parse TOML text; a malformed text raises InputFileError naming ``label``.
+
+    Besides TOML's own errors, an integer too long to read and nesting too deep for the parser are
+    refused here.
+    """
     try:
         return tomllib.loads(text)
     except tomllib.TOMLDecodeError as error:
         raise InputFileError(f"{label}: not valid TOML: {error}") from None
+    except ValueError as error:  # an integer beyond Python's digit limit
+        raise InputFileError(f"{label}: a number is too long to read ({error})") from None
+    except RecursionError:
+        raise InputFileError(f"{label}: arrays or tables are nested too deeply for a {what}") from None
 
 
 def choose(name: str, options, what: str, listing: str = "Allowed", more: str = "") -> str:
@@ -46,7 +73,8 @@ def choose(name: str, options, what: str, listing: str = "Allowed", more: str = 
         return name
     close = difflib.get_close_matches(name, options, n=1)
     hint = f" (did you mean '{close[0]}'?)" if close else ""
-    raise InputFileError(f"unknown {what} '{name}'{hint}. {listing}: {', '.join(options)}{more}")
+    shown = name if len(name) <= 40 else name[:37] + "..."
+    raise InputFileError(f"unknown {what} '{shown}'{hint}. {listing}: {', '.join(options)}{more}")
 
 
 def bundled_folder(package: str, fallback: Path):
@@ -76,7 +104,11 @@ def load_named(source: str | Path, folder, label_prefix: str, what: str) -> tupl
     """
     text = str(source)
     path = Path(text)
-    if path.is_file() or text.endswith(".toml") or "/" in text:
+    try:
+        is_file = path.is_file()
+    except OSError:  # a name too long for the file system, say
+        is_file = False
+    if is_file or text.endswith(".toml") or "/" in text:
         return read_toml(path, f"{what} file"), str(path)
     files = bundled_files(folder)
     resource = files[choose(text, files, what, "Bundled", "; or give the path of a .toml file")]
@@ -161,11 +193,20 @@ class Table:
 
     def check_number(self, key, value, low=-math.inf, high=math.inf, unit="") -> float:
         if isinstance(value, bool) or not isinstance(value, (int, float)):
-            self.fail(key, f"must be a number, not {value!r}")
-        value = float(value)
+            self.fail(key, f"must be a number, not {short_repr(value)}")
+        try:
+            value = float(value)
+        except OverflowError:
+            self.fail(key, f"is a number beyond any allowed range; allowed: {_span(low, high, unit)}")
         if not math.isfinite(value) or not low <= value <= high:
             self.fail(key, f"= {value:g} is outside the allowed range {_span(low, high, unit)}")
         return value
+
+
+def short_repr(value, limit: int = 40) -> str:
+    """``repr(value)`` cut to ``limit`` characters for a message."""
+    text = repr(value)
+    return text if len(text) <= limit else text[:limit - 3] + "..."
 
 
 def _span(low: float, high: float, unit: str) -> str:

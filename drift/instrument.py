@@ -21,7 +21,7 @@ import numpy as np
 from drift.climate import Room
 from drift.constants import A4_HZ, DEFAULT_CO2_FRACTION, STANDARD_PRESSURE, ZERO_CELSIUS
 from drift.errors import DriftError, InputFileError, OutOfRangeError
-from drift.files import Table, bundled_files, load_named
+from drift.files import Table, bundled_files, load_named, short_repr
 from drift.materials import DEFAULT_MATERIALS, Material, material
 from drift.scale import note_to_midi
 
@@ -68,6 +68,9 @@ DEFAULT_EMBOUCHURE_CHIMNEY = 5.0e-3
 DEFAULT_LIP_COVER = 0.25
 #: Largest lip cover accepted [-] (beyond it the hole is mostly shut and the jet model fails).
 MAX_LIP_COVER = 0.7
+#: Least distance between the edges of two holes along the bore [m]: the hole model treats each
+#: hole alone, which holes that touch or overlap break (common practice for drilled holes).
+MIN_HOLE_GAP = 1.0e-3
 #: Wall thickness when neither the file nor its material gives one [m] (common practice for
 #: wooden and plastic woodwind bodies).
 DEFAULT_WALL = 3.0e-3
@@ -375,6 +378,7 @@ def parse_instrument(data: dict, path: str | Path = "<instrument>") -> Instrumen
         chim = t.number("chimney_mm", default_chimney * 1e3, low=0.0, high=100.0, unit="mm")
         holes.append(Hole(hname, pos * 1e-3, dia * 1e-3, chim * 1e-3))
 
+    _check_hole_spacing(top, holes)
     names = [h.name for h in holes]
     notes = []
     for t in top.tables("note", NOTE_KEYS):
@@ -393,7 +397,7 @@ def parse_instrument(data: dict, path: str | Path = "<instrument>") -> Instrumen
                 t.fail("closed", f"names unknown hole '{c}'{hint}")
         register = t.data.get("register", 1)
         if isinstance(register, bool) or not isinstance(register, int) or not 1 <= register <= 12:
-            t.fail("register", f"= {register!r} must be a whole number from 1 to 12")
+            t.fail("register", f"= {short_repr(register)} must be a whole number from 1 to 12")
         notes.append(Note(nname, tuple(closed), register))
 
     d = top.table("design", DESIGN_KEYS)
@@ -481,6 +485,21 @@ def _input_end(top: Table, excitation: str, stations: np.ndarray) -> InputEnd:
                     embouchure_chimney_m=chim * 1e-3,
                     embouchure_outer_correction_m=None if outer is None else outer * 1e-3,
                     lip_cover=DEFAULT_LIP_COVER if cover is None else cover / 100)
+
+
+def _check_hole_spacing(top, holes) -> None:
+    """Refuse two holes at one position, or whose edges along the bore are closer than
+    :data:`MIN_HOLE_GAP`, naming both."""
+    ordered = sorted(holes, key=lambda h: h.position_m)
+    for a, b in zip(ordered, ordered[1:]):
+        where = f"[[hole]] '{a.name}' and '{b.name}'"
+        if abs(b.position_m - a.position_m) < 1e-9:
+            raise InputFileError(f"{top.path}: {where} sit at one position ({a.position_m * 1e3:g} mm); "
+                                 "give each hole its own position_mm")
+        gap = (b.position_m - b.diameter_m / 2) - (a.position_m + a.diameter_m / 2)
+        if gap < MIN_HOLE_GAP:
+            raise InputFileError(f"{top.path}: {where} overlap or nearly touch (edges {gap * 1e3:.2f} mm apart); "
+                                 f"their edges must be at least {MIN_HOLE_GAP * 1e3:g} mm apart along the bore")
 
 
 def _bundled_dir():

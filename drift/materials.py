@@ -6,12 +6,14 @@ The values live in the package table ``drift/data/materials.toml``, each with it
 
 from __future__ import annotations
 
+import math
+
 import functools
 from dataclasses import dataclass
 from importlib import resources
 
 from drift.errors import InputFileError
-from drift.files import choose, read_toml_text
+from drift.files import choose, read_toml_text, short_repr
 
 _MATERIAL_KEYS = {
     "description": str,
@@ -85,9 +87,9 @@ class Material:
 def _positive(table_name: str, key: str, value, upper: float | None = None) -> float:
     where = f"materials.toml: [{table_name}] {key}"
     if isinstance(value, bool) or not isinstance(value, (int, float)):
-        raise InputFileError(f"{where} must be a number, got {value!r}")
-    value = float(value)
-    if not value > 0.0 or (upper is not None and value > upper):
+        raise InputFileError(f"{where} must be a number, got {short_repr(value)}")
+    value = float(value) if abs(value) < 1e300 else math.inf
+    if not 0.0 < value < math.inf or (upper is not None and value > upper):
         allowed = f"0 < value <= {upper:g}" if upper is not None else "a positive number"
         raise InputFileError(f"{where} = {value:g} is not allowed: use {allowed}")
     return value

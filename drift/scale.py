@@ -19,6 +19,8 @@ from drift.constants import A4_HZ
 
 _NOTE = re.compile(r"^([A-Ga-g])([#b♯♭]{0,2})(-?\d+)$")
 _STEPS = {"C": 0, "D": 2, "E": 4, "F": 5, "G": 7, "A": 9, "B": 11}
+#: Octaves of note names accepted: C-1 (8.2 Hz) to B9 (15.8 kHz), the MIDI range and a little more.
+LOWEST_OCTAVE, HIGHEST_OCTAVE = -1, 9
 
 
 def note_to_midi(name: str) -> int:
@@ -31,6 +33,8 @@ def note_to_midi(name: str) -> int:
     if not m:
         raise ValueError("not a note name; use scientific pitch notation such as C4, F#3 or Bb5")
     letter, acc, octave = m.groups()
+    if len(octave) > 2 or not LOWEST_OCTAVE <= int(octave) <= HIGHEST_OCTAVE:
+        raise ValueError(f"octave {octave[:6]} is outside {LOWEST_OCTAVE} to {HIGHEST_OCTAVE}")
     shift = sum(1 if ch in "#♯" else -1 for ch in acc)
     return 12 * (int(octave) + 1) + _STEPS[letter.upper()] + shift
 

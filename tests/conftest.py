@@ -339,20 +339,24 @@ class OutsideCheck:
     def __init__(self, test_id):
         self.test_id = test_id
 
-    def check(self, measured, expected, *, quantity, source, rel=None, abs=None, unit=""):
-        """Assert |measured - expected| <= abs, or |measured / expected - 1| <= rel, everywhere.
+    def check(self, measured, expected, *, quantity, source, rel=None, abs=None, cents=None, unit=""):
+        """Assert |measured - expected| <= abs, |measured / expected - 1| <= rel, or
+        |1200 log2(measured / expected)| <= cents (for frequencies), everywhere.
 
         ``quantity`` says what is compared, ``source`` the publication (authors, year, table or
         equation; "from memory" where the value was recalled), ``unit`` the unit of ``expected``.
         The deviation recorded is the largest over the values.
         """
-        if (rel is None) == (abs is None):
-            raise TypeError("give exactly one of rel and abs")
+        if sum(t is not None for t in (rel, abs, cents)) != 1:
+            raise TypeError("give exactly one of rel, abs and cents")
         m = np.asarray(measured, dtype=float)
         e = np.asarray(expected, dtype=float)
         if rel is not None:
             deviation = float(np.max(np.abs(m / e - 1.0)))
             tolerance, kind = rel, "relative"
+        elif cents is not None:
+            deviation = float(np.max(np.abs(1200.0 * np.log2(m / e))))
+            tolerance, kind = cents, "cent"
         else:
             deviation = float(np.max(np.abs(m - e)))
             tolerance, kind = abs, unit

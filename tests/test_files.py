@@ -1,6 +1,7 @@
 """Strict reading of the project's TOML files (drift.files): messages name the file, the key and
 what is allowed."""
 
+import os
 import tomllib
 
 import pytest
@@ -18,11 +19,54 @@ def test_read_toml_missing_malformed_and_unreadable(tmp_path):
     bad.write_text("name = \n")
     with pytest.raises(InputFileError, match=f"{bad}: not valid TOML"):
         files.read_toml(bad)
-    with pytest.raises(InputFileError, match="cannot read the file"):
-        files.read_toml(tmp_path)  # a folder
+    with pytest.raises(InputFileError, match="is a folder"):
+        files.read_toml(tmp_path)
     good = tmp_path / "good.toml"
     good.write_text('name = "x"\n[air]\ntemperature_c = 1.5\n')
     assert files.read_toml(good) == {"name": "x", "air": {"temperature_c": 1.5}}
+
+
+@pytest.mark.parametrize("content, needle", [
+    (b"name = \"\xff\xfe\"\n", "is not UTF-8 text (byte 9)"),
+    (b"a = " + b"1" * 400 + b"\n", None),                       # parses; the key's check refuses it
+    (b"a = " + b"1" * 5000 + b"\n", "a number is too long to read"),
+    (b"a = " + b"[" * 5000 + b"]" * 5000 + b"\n", "nested too deeply"),
+    (b"# " + b"x" * 1_000_001 + b"\n", "is larger than 1 MB"),
+])
+def test_hostile_files_get_one_clear_line(tmp_path, content, needle):
+    path = tmp_path / "odd.toml"
+    path.write_bytes(content)
+    if needle is None:
+        value = files.read_toml(path)["a"]
+        with pytest.raises(InputFileError) as info:
+            Table({"a": value}, path, allowed=("a",)).number("a", low=0.0, high=10.0, unit="mm")
+        assert "a is a number beyond any allowed range; allowed: 0 to 10 mm" in str(info.value)
+        assert len(str(info.value)) < 200
+        return
+    with pytest.raises(InputFileError) as info:
+        files.read_toml(path)
+    message = str(info.value)
+    assert message.startswith(f"{path}: ") and needle in message and "\n" not in message
+
+
+def test_devices_pipes_and_long_names_are_refused_before_reading(tmp_path):
+    fifo = tmp_path / "pipe.toml"
+    os.mkfifo(fifo)
+    with pytest.raises(InputFileError, match="is not a regular file"):
+        files.read_toml(fifo)                   # would block forever if opened
+    with pytest.raises(InputFileError, match="is not a regular file"):
+        files.read_toml("/dev/zero")            # would be read without end
+    with pytest.raises(InputFileError, match="cannot read the file"):
+        files.read_toml(tmp_path / ("x" * 300 + ".toml"))
+    with pytest.raises(InputFileError, match=r"^unknown instrument 'xxxxx.{32}\.\.\.'"):
+        files.load_named("x" * 5000, tmp_path, "here", "instrument")
+
+
+@pytest.mark.parametrize("value", [float("nan"), float("inf"), -float("inf")])
+def test_nan_and_infinity_are_refused_by_key(tmp_path, value):
+    with pytest.raises(InputFileError, match="x.toml: \\[air\\] temperature_c = .* outside the allowed range"):
+        Table({"temperature_c": value}, tmp_path / "x.toml", "[air]", ("temperature_c",)).number(
+            "temperature_c", low=-30.0, high=60.0)
 
 
 def test_read_toml_text():

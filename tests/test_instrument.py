@@ -49,6 +49,10 @@ def test_full_file(two_hole_pipe):
     (("register = 1", "register = 0"), ["register", "1 to 12"]),
     (("position_mm = 100.0", "position_mm = 450.0"), ["[tuning] position_mm", "within hole h1"]),
     (('name = "pipe"', 'nme = "pipe"'), ["nme", "did you mean 'name'"]),
+    (("position_mm = 400.0", "position_mm = 450.0"), ["pipe.toml", "'h1' and 'h2' sit at one position"]),
+    (("position_mm = 400.0", "position_mm = 444.0"), ["'h2' and 'h1' overlap", "-1.50 mm", "at least 1 mm apart"]),
+    (('name = "E3"', 'name = "E10"'), ["[[note]] #2 name", "octave 10 is outside -1 to 9"]),
+    (("register = 1", "register = " + "9" * 400), ["register", "must be a whole number from 1 to 12"]),
 ])
 def test_bad_files_name_file_and_key(write_toml, edit, words):
     path = write_toml(TWO_HOLE_PIPE.replace(*edit, 1), "pipe.toml")
