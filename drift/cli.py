@@ -212,6 +212,7 @@ def chart_command(instrument, climate_names, reference_name, a4_hz, show_offsets
     from drift import advice, chart, climate, render
     from drift.instrument import DEFAULT_INSTRUMENT, load_instrument
 
+    render.check_output(output, [instrument, reference_name, *climate_names])
     inst = load_instrument(instrument or DEFAULT_INSTRUMENT)
     climates = ([climate.load_climate(c) for c in climate_names] if climate_names
                 else climate.bundled_climates())
@@ -259,6 +260,7 @@ def warmup_command(instrument, climate_name, plan_text, step_s, reference_name, 
         plan = climate.parse_plan(plan_text)
     except DriftError as error:
         raise click.BadParameter(str(error), param_hint="--plan") from None
+    render.check_output(output, [instrument, climate_name, reference_name])
     inst = load_instrument(instrument or DEFAULT_INSTRUMENT)
     design = inst.design
     if climate_name:

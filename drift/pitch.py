@@ -45,6 +45,9 @@ GRID_LIMIT_HZ = 15000.0
 #: n of an air column down to half the bore's length (the span of a register's fingerings)
 #: lies below 2n c/2L, for odd (closed cylinder) and all harmonics (cone, open pipe) alike.
 GRID_FIRST_SPACINGS = 2
+#: The lattice starts below 20 Hz when a quarter of c/2L is lower: the lowest resonance of a
+#: closed-open bore is c/4L, half the spacing, and an added volume at the input lowers it further.
+GRID_LOWEST_SPACING = 0.25
 #: Relative tolerance of the refinement: the refined extremum is confirmed between points 1e-7 of
 #: the frequency (0.0002 cent) to either side (see :func:`refine_extrema`).
 REFINE_XRTOL = 1e-7
@@ -98,11 +101,16 @@ def search_resonances(network: Network, open_holes, counts, minima: bool = False
     rows = np.asarray(open_holes, dtype=bool)
     counts = np.broadcast_to(np.asarray(counts, dtype=int), (len(rows),))
     last = math.ceil(math.log2(GRID_LIMIT_HZ / GRID_START_HZ) / GRID_STEP_OCTAVES)   # lattice index
-    top = GRID_FIRST_SPACINGS * int(counts.max(initial=0)) * float(network.resonance_spacing_hz().max())
+    spacing = network.resonance_spacing_hz()
+    top = GRID_FIRST_SPACINGS * int(counts.max(initial=0)) * float(spacing.max())
+    # a bore so long that its lowest resonance may fall below 20 Hz: the lattice reaches down to
+    # GRID_LOWEST_SPACING c/2L (the same points below 20 Hz; nothing changes above)
+    lowest = GRID_LOWEST_SPACING * float(spacing.min())
+    first = min(0, math.floor(math.log2(lowest / GRID_START_HZ) / GRID_STEP_OCTAVES))
     end = min(last, max(2, math.ceil(math.log2(max(top, GRID_START_HZ) / GRID_START_HZ) / GRID_STEP_OCTAVES)))
     found = [[[] for _ in rows] for _ in range(b)]
     short = np.broadcast_to(counts > 0, (b, len(rows))).copy()
-    start = 0
+    start = first
     while short.any():
         f = GRID_START_HZ * 2.0 ** (GRID_STEP_OCTAVES * np.arange(start, end + 1))
         todo = np.nonzero(short.any(axis=0))[0]

@@ -14,12 +14,16 @@ import io
 import json
 import math
 import os
+import signal
+import stat
 import tempfile
 import textwrap
+import threading
 from pathlib import Path
 
 from drift import advice
 from drift.constants import SPECIES, ZERO_CELSIUS
+from drift.errors import DriftError
 
 def _clean(value):
     """Make a value JSON-safe: numpy scalars to Python, NaN/inf to None."""
@@ -65,26 +69,63 @@ def emit(doc, fmt: str, table, csv, output: str | os.PathLike | None = None) -> 
     write_text(text, output)
 
 
+def check_output(output: str | os.PathLike | None, inputs) -> None:
+    """Refuse an ``--output`` that names one of the input files (a bundled name or a path each)."""
+    if output is None:
+        return
+    out = os.path.realpath(output)
+    for source in inputs:
+        if source and os.path.isfile(str(source)) and os.path.realpath(str(source)) == out:
+            raise DriftError(f"--output {output} is the input file {source}; write the result to another file")
+
+
+def _new_file_mode() -> int:
+    """The mode a new file gets under the process's umask (0o666 & ~umask)."""
+    umask = os.umask(0)
+    os.umask(umask)
+    return 0o666 & ~umask
+
+
+def _terminate(signum, frame):
+    raise SystemExit(128 + signum)
+
+
 def write_text(text: str, path: str | os.PathLike | None) -> None:
     """Write ``text`` to ``path`` atomically, or to standard output when ``path`` is None.
 
-    The text goes to a temporary file in the same folder first and replaces the target only when
-    complete, so a failed run never leaves a half-written or emptied output file.
+    The text goes to a temporary file in the target's folder first and replaces the target only
+    when complete, so a failed run never leaves a half-written or emptied output file; SIGTERM
+    during the write removes the temporary file too. A symbolic link is written through (its
+    target is replaced, the link stays); an existing file keeps its mode, a new one gets the
+    umask's. Errors raise DriftError naming ``path`` as given.
     """
     if path is None:
         import click
 
         click.echo(text, nl=False)
         return
-    target = Path(path)
-    handle, temporary = tempfile.mkstemp(dir=target.parent or ".", prefix=f".{target.name}.", suffix=".tmp")
+    target = Path(os.path.realpath(path))
     try:
+        mode = stat.S_IMODE(target.stat().st_mode) if target.exists() else _new_file_mode()
+        handle, temporary = tempfile.mkstemp(dir=target.parent, prefix=f".{target.name}.", suffix=".tmp")
+    except OSError as error:
+        raise DriftError(f"{path}: cannot write the output: {error.strerror or error}") from None
+    main_thread = threading.current_thread() is threading.main_thread()
+    previous = signal.signal(signal.SIGTERM, _terminate) if main_thread else None
+    try:
+        os.fchmod(handle, mode)
         with os.fdopen(handle, "w", encoding="utf-8", newline="") as stream:
             stream.write(text)
         os.replace(temporary, target)
+    except OSError as error:
+        Path(temporary).unlink(missing_ok=True)
+        raise DriftError(f"{path}: cannot write the output: {error.strerror or error}") from None
     except BaseException:
         Path(temporary).unlink(missing_ok=True)
         raise
+    finally:
+        if main_thread:
+            signal.signal(signal.SIGTERM, previous)
 
 
 # --------------------------------------------------------------------------------------------

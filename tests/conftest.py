@@ -341,7 +341,8 @@ class OutsideCheck:
 
     def check(self, measured, expected, *, quantity, source, rel=None, abs=None, cents=None, unit=""):
         """Assert |measured - expected| <= abs, |measured / expected - 1| <= rel, or
-        |1200 log2(measured / expected)| <= cents (for frequencies), everywhere.
+        |1200 log2(measured / expected)| <= cents (for frequencies), everywhere. Complex values
+        are compared by rel.
 
         ``quantity`` says what is compared, ``source`` the publication (authors, year, table or
         equation; "from memory" where the value was recalled), ``unit`` the unit of ``expected``.
@@ -349,8 +350,11 @@ class OutsideCheck:
         """
         if sum(t is not None for t in (rel, abs, cents)) != 1:
             raise TypeError("give exactly one of rel, abs and cents")
-        m = np.asarray(measured, dtype=float)
-        e = np.asarray(expected, dtype=float)
+        complex_values = np.iscomplexobj(measured) or np.iscomplexobj(expected)
+        if complex_values and rel is None:
+            raise TypeError("complex values are compared by rel: |measured / expected - 1|")
+        m = np.asarray(measured, dtype=complex if complex_values else float)
+        e = np.asarray(expected, dtype=complex if complex_values else float)
         if rel is not None:
             deviation = float(np.max(np.abs(m / e - 1.0)))
             tolerance, kind = rel, "relative"
@@ -360,8 +364,10 @@ class OutsideCheck:
         else:
             deviation = float(np.max(np.abs(m - e)))
             tolerance, kind = abs, unit
+        size = np.abs(e) if complex_values else e
         OUTSIDE_RECORDS.append({"test": self.test_id, "quantity": quantity, "source": source, "unit": unit,
-                                "reference_min": float(e.min()), "reference_max": float(e.max()),
+                                "complex": bool(complex_values),
+                                "reference_min": float(size.min()), "reference_max": float(size.max()),
                                 "count": int(e.size), "tolerance": tolerance, "kind": kind,
                                 "deviation": deviation})
         assert np.all(np.isfinite(m)) and deviation <= tolerance, (

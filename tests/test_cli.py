@@ -9,7 +9,7 @@ import math
 import numpy as np
 import pytest
 
-from conftest import BREATH_WARM_ROOM, CONE, CYLINDER, WARM_ROOM, assert_refused
+from conftest import BREATH_WARM_ROOM, CONE, CYLINDER, TWO_HOLE_PIPE, WARM_ROOM, assert_refused
 from drift import air, climate
 from drift.constants import SPECIES
 from drift.instrument import DEFAULT_INSTRUMENT, load_instrument
@@ -320,6 +320,15 @@ def test_warmup_climate_and_reference_files(cli, warmup_pipe, write_toml):
     bore0 = [b for b in doc["bore"] if b["minute"] == 0.0]
     assert bore0[-1]["wall_temperature_c"] == pytest.approx(26.0, abs=1e-6)
     assert all(r["drift_cents"] < 0 for r in doc["rows"])
+
+
+@pytest.mark.parametrize("command", ["chart", "warmup"])
+def test_output_may_not_overwrite_the_input(cli, tmp_path, command):
+    source = tmp_path / "pipe.toml"
+    source.write_text(TWO_HOLE_PIPE)
+    result = cli(command, source, "--output", source, code=None)
+    assert_refused(result, f"--output {source} is the input file")
+    assert source.read_text() == TWO_HOLE_PIPE
 
 
 def test_warmup_output_kept_on_failure(cli, pipe_warmup, tmp_path):

@@ -31,12 +31,13 @@ def test_minimal_file_takes_documented_defaults(write_toml):
     assert c.player.breath == climate.DEFAULT_BREATH
 
 
-def test_altitude_and_breath_overrides(write_toml):
+def test_altitude_and_breath_overrides(outside, write_toml):
     text = ('name = "x"\n[air]\ntemperature_c = 10\naltitude_m = 1000\n'
             '[player]\nminutes_played = 5\nbreath_temperature_c = 33\nbreath_co2_pct = 5\n')
     c = climate.load_climate(str(write_toml(text)))
     # ISO 2533 at 1000 m: 89.876 kPa.
-    assert c.room.pressure_pa == pytest.approx(89876.0, abs=2)
+    outside.check(c.room.pressure_pa, 89876.0, quantity="pressure of a climate file at altitude 1000 m",
+                  source="ISO 2533:1975 table value (from memory)", abs=2.0, unit="Pa")
     assert c.player.minutes_played == 5
     assert c.player.breath.temperature_k == pytest.approx(306.15)
     assert c.player.breath.co2_fraction == pytest.approx(0.05)
@@ -70,11 +71,15 @@ def test_unknown_bundled_name_suggests():
     assert str(info.value).endswith("or give the path of a .toml file")
 
 
-def test_iso_2533_pressures():
+def test_iso_2533_pressures(outside):
     """ISO 2533:1975 (identical to the U.S. Standard Atmosphere 1976 below 11 km): 89 876 Pa at
     1000 m and 79 501 Pa at 2000 m geometric altitude (table values, from memory)."""
-    assert climate.pressure_from_altitude([1000.0, 2000.0]) == pytest.approx([89876.0, 79501.0], abs=2.0)
-    assert float(climate.pressure_from_altitude(0.0)) == pytest.approx(101325.0)
+    outside.check(climate.pressure_from_altitude([1000.0, 2000.0]), [89876.0, 79501.0],
+                  quantity="standard-atmosphere pressure at 1000 and 2000 m geometric altitude",
+                  source="ISO 2533:1975 / U.S. Standard Atmosphere 1976 tables (from memory)", abs=2.0, unit="Pa")
+    outside.check(float(climate.pressure_from_altitude(0.0)), 101325.0,
+                  quantity="standard-atmosphere pressure at sea level", source="ISO 2533:1975 (from memory)",
+                  rel=1e-6, unit="Pa")
 
 
 def test_altitude_range():

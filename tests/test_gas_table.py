@@ -139,6 +139,26 @@ def where(c, i):
             f"x_H2O {c['x'][i, 4]:.4f}, O2 dry {c['x'][i, 1] / dry:.4f}, CO2 dry {c['x'][i, 3] / dry:.4f}")
 
 
+#: The states compared: the random ones and the corners of :func:`states`.
+STATES = (f"{RANDOM_STATES + 32} states, -30 to 60 °C, 50-110 kPa, dry to saturated, "
+          "O2 5-21 % and CO2 0-10 % of the dry gas")
+#: The reference of every comparison below.
+COOLPROP = ("CoolProp 8 (Bell et al. 2014), HEOS mixture N2-O2-Ar-CO2-H2O, gas phase, "
+            "state by state (independent library)")
+
+
+def check_against_coolprop(outside, c, measured, expected, *, quantity, source=COOLPROP, rel, unit="",
+                           rows=None):
+    """``outside.check`` of table values against reference values at the states ``rows`` (all by
+    default), naming the state of the largest deviation when it fails."""
+    rows = np.arange(len(c["t"])) if rows is None else np.flatnonzero(rows)
+    try:
+        outside.check(measured, expected, quantity=quantity, source=source, rel=rel, unit=unit)
+    except AssertionError as error:
+        i = int(np.argmax(np.abs(np.asarray(measured) / np.asarray(expected) - 1.0)))
+        raise AssertionError(f"{error}; {where(c, rows[i])}") from None
+
+
 def test_states_cover_the_domain(comparison):
     t, p, x = comparison["t"], comparison["p"], comparison["x"]
     assert len(t) >= 300 + 32
@@ -148,31 +168,34 @@ def test_states_cover_the_domain(comparison):
     assert np.sum(x[:, 4] == 0) >= 16 and np.sum(saturated) >= 16
 
 
-def test_sound_speed_within_5_ppm_of_coolprop(comparison):
-    dev = np.abs(comparison["ours"][:, 0] / comparison["ref"][:, 0] - 1.0)
-    i = int(np.argmax(dev))
-    assert dev[i] < SOUND_SPEED_TOLERANCE, f"{dev[i]:.2e} {where(comparison, i)}"
+def test_sound_speed_within_5_ppm_of_coolprop(outside, comparison):
+    c = comparison
+    check_against_coolprop(outside, c, c["ours"][:, 0], c["ref"][:, 0],
+                           quantity=f"speed of sound from the shipped table, {STATES}", rel=SOUND_SPEED_TOLERANCE,
+                           unit="m/s")
 
 
-@pytest.mark.parametrize("column, name", [(1, "density"), (2, "viscosity"), (4, "cp"), (5, "gamma")])
-def test_property_within_0_1_percent_of_coolprop(comparison, column, name):
-    dev = np.abs(comparison["ours"][:, column] / comparison["ref"][:, column] - 1.0)
-    i = int(np.argmax(dev))
-    assert dev[i] < PROPERTY_TOLERANCE, f"{name}: {dev[i]:.2e} {where(comparison, i)}"
+@pytest.mark.parametrize("column, name, unit", [(1, "density", "kg/m³"), (2, "viscosity", "Pa s"),
+                                                (4, "cp", "J/(kg K)"), (5, "gamma", "")])
+def test_property_within_0_1_percent_of_coolprop(outside, comparison, column, name, unit):
+    c = comparison
+    check_against_coolprop(outside, c, c["ours"][:, column], c["ref"][:, column],
+                           quantity=f"{name} from the shipped table, {STATES}", rel=PROPERTY_TOLERANCE, unit=unit)
 
 
-def test_conductivity_against_coolprop_where_water_has_no_critical_term(comparison):
+def test_conductivity_against_coolprop_where_water_has_no_critical_term(outside, comparison):
     """Plain CoolProp, at the states where its water conductivity carries no IAPWS-2011 critical
     term: dry gas, or pure water past its vapour spinodal at the mixture's (T, rho)."""
     c = comparison
     clean = (c["x"][:, 4] == 0) | water_past_spinodal(c["t"], c["ref"][:, 6])
     assert clean.sum() >= 100  # the comparison below is not empty
-    dev = np.abs(c["ours"][clean, 3] / c["ref"][clean, 3] - 1.0)
-    i = int(np.argmax(dev))
-    assert dev[i] < PROPERTY_TOLERANCE, f"{dev[i]:.2e} {where(c, np.flatnonzero(clean)[i])}"
+    check_against_coolprop(outside, c, c["ours"][clean, 3], c["ref"][clean, 3], rows=clean,
+                           quantity=f"thermal conductivity from the shipped table, the {int(clean.sum())} states "
+                           "of the set where water has no critical term (dry, or past water's vapour spinodal)",
+                           rel=PROPERTY_TOLERANCE, unit="W/(m K)")
 
 
-def test_conductivity_against_coolprop_less_water_critical_term(comparison):
+def test_conductivity_against_coolprop_less_water_critical_term(outside, comparison):
     """Everywhere: CoolProp's mixture conductivity, sum x_i lambda_i(T, rho), less x_H2O lambda_2,
     the IAPWS-2011 critical term of water evaluated at the mixture density, which the table
     leaves out by design (see drift.gas_table). That term reaches far beyond 0.1 % near water's
@@ -180,21 +203,21 @@ def test_conductivity_against_coolprop_less_water_critical_term(comparison):
     c = comparison
     term = c["x"][:, 4] * water_critical_term(c["t"], c["ref"][:, 6])
     assert np.max(term / c["ref"][:, 3]) > 10 * PROPERTY_TOLERANCE
-    expected = c["ref"][:, 3] - term
-    dev = np.abs(c["ours"][:, 3] / expected - 1.0)
-    i = int(np.argmax(dev))
-    assert dev[i] < PROPERTY_TOLERANCE, f"{dev[i]:.2e} {where(c, i)}"
+    check_against_coolprop(outside, c, c["ours"][:, 3], c["ref"][:, 3] - term,
+                           quantity=f"thermal conductivity from the shipped table, {STATES}",
+                           source=COOLPROP + ", less x_H2O times water's critical term of Huber et al. (2012), "
+                           "IAPWS R15-11, Eqs. 11-13, Table 6", rel=PROPERTY_TOLERANCE, unit="W/(m K)")
 
 
-def test_prandtl_number(comparison):
+def test_prandtl_number(outside, comparison):
     """Pr = cp eta / lambda from CoolProp (lambda less the water term as above); the tolerance is
     the sum of the three factors' tolerances."""
     c = comparison
     lam = c["ref"][:, 3] - c["x"][:, 4] * water_critical_term(c["t"], c["ref"][:, 6])
-    expected = c["ref"][:, 4] * c["ref"][:, 2] / lam
-    dev = np.abs(c["ours"][:, 6] / expected - 1.0)
-    i = int(np.argmax(dev))
-    assert dev[i] < 3 * PROPERTY_TOLERANCE, f"{dev[i]:.2e} {where(c, i)}"
+    check_against_coolprop(outside, c, c["ours"][:, 6], c["ref"][:, 4] * c["ref"][:, 2] / lam,
+                           quantity=f"Prandtl number from the shipped table, {STATES}",
+                           source=COOLPROP + ": cp eta / lambda, lambda less x_H2O times water's critical term of "
+                           "Huber et al. (2012)", rel=3 * PROPERTY_TOLERANCE)
 
 
 def test_states_from_the_air_layer_are_accepted():

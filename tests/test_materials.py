@@ -27,23 +27,32 @@ def test_materials_table_complete_with_sources():
     ("sterling_silver", 10200, 10400),
     ("ebonite", 1100, 1250),
 ])
-def test_material_densities_within_handbook_ranges(name, low, high):
-    assert low <= materials.material(name).density <= high
+def test_material_densities_within_handbook_ranges(outside, name, low, high):
+    # The range is checked as its midpoint give or take its half-width.
+    outside.check(materials.material(name).density, (low + high) / 2, quantity=f"density of {name.replace('_', ' ')}",
+                  source="ASM Handbook Vol. 2 (1990) data sheets; Incropera et al. (2007), Table A.1/A.3 "
+                  "(from memory)", abs=(high - low) / 2, unit="kg/m³")
 
 
-def test_brass_expansion_over_10_k_against_handbook():
+def test_brass_expansion_over_10_k_against_handbook(outside):
     # ASM Handbook Vol. 2 (1990): cartridge/yellow brasses C26000-C27000 expand 19.9e-6 to
     # 20.3e-6 /K (20-300 °C; from memory). A 1 m brass tube heated by 10 K lengthens by
-    # 199-203 µm; the bore layer's expansion law applies the table's coefficient.
+    # 199-203 µm; the bore layer's expansion law applies the table's coefficient. The range,
+    # widened by 0.5 µm either side, is checked as its midpoint give or take its half-width.
     factor = expansion_factors(303.15, BRASS.expansion_per_k, 293.15)
     growth_um = (factor - 1.0) * 1.0 * 1e6
-    assert 199.0 - 0.5 <= growth_um <= 203.0 + 0.5
+    outside.check(growth_um, 201.0, quantity="growth of a 1 m yellow brass tube heated from 20 to 30 °C",
+                  source="ASM Handbook Vol. 2 (1990), brasses C26000-C27000, 19.9e-6 to 20.3e-6 /K (from memory)",
+                  abs=2.5, unit="µm")
 
 
-def test_wood_moves_less_along_the_grain_than_across():
+def test_wood_moves_less_along_the_grain_than_across(outside):
     # Wood Handbook FPL-GTR-190 (2010), Ch. 4: along the grain 3.1e-6 to 4.5e-6 /K, across it
-    # roughly ten times more (from memory).
-    assert 3.1e-6 <= WOOD.expansion_per_k <= 4.5e-6
+    # roughly ten times more (from memory). The range along the grain is checked as its midpoint
+    # give or take its half-width.
+    outside.check(WOOD.expansion_per_k, 3.8e-6, quantity="expansion coefficient of tropical hardwood along the grain",
+                  source="Wood Handbook FPL-GTR-190 (2010), Ch. 4, 3.1e-6 to 4.5e-6 /K (from memory)", abs=0.7e-6,
+                  unit="1/K")
     assert WOOD.expansion_across_per_k > 5 * WOOD.expansion_per_k
     assert WOOD.conductivity_across < WOOD.conductivity
 

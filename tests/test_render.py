@@ -5,12 +5,16 @@ import csv
 import io
 import json
 import math
+import os
+import signal
+import stat
 
 import numpy as np
 import pytest
 
 from drift import render
 from drift.climate import Room, load_climate
+from drift.errors import DriftError
 from drift.instrument import Note
 from drift.pitch import Resonances
 
@@ -49,9 +53,60 @@ def test_write_text_failure_leaves_the_old_file_untouched(tmp_path):
         render.write_text("x" * 100_000 + "\udc80", target)
     assert target.read_text() == "previous result\n"
     assert [p.name for p in tmp_path.iterdir()] == ["keep.txt"]  # no temporary file left behind
-    with pytest.raises(FileNotFoundError):
-        render.write_text("text", tmp_path / "no-such-folder" / "out.txt")
+    missing = tmp_path / "no-such-folder" / "out.txt"
+    with pytest.raises(DriftError) as info:
+        render.write_text("text", missing)
+    assert str(info.value).startswith(f"{missing}: cannot write the output") and ".tmp" not in str(info.value)
     assert [p.name for p in tmp_path.iterdir()] == ["keep.txt"]
+
+
+def test_write_text_keeps_the_mode_or_takes_the_umask(tmp_path):
+    kept = tmp_path / "kept.txt"
+    kept.write_text("old\n")
+    kept.chmod(0o644)
+    render.write_text("new\n", kept)
+    assert stat.S_IMODE(kept.stat().st_mode) == 0o644
+    previous = os.umask(0o027)
+    try:
+        render.write_text("new\n", tmp_path / "fresh.txt")
+    finally:
+        os.umask(previous)
+    assert stat.S_IMODE((tmp_path / "fresh.txt").stat().st_mode) == 0o640
+
+
+def test_write_text_writes_through_a_symlink(tmp_path):
+    real = tmp_path / "real.json"
+    real.write_text("old\n")
+    link = tmp_path / "link.json"
+    link.symlink_to(real)
+    render.write_text("new\n", link)
+    assert link.is_symlink() and real.read_text() == "new\n"
+
+
+def test_sigterm_while_writing_leaves_no_temporary_file(tmp_path, monkeypatch):
+    target = tmp_path / "out.txt"
+    target.write_text("previous\n")
+    real_replace = os.replace
+
+    def terminated(*args):
+        os.kill(os.getpid(), signal.SIGTERM)  # arrives inside the write window
+        real_replace(*args)
+
+    monkeypatch.setattr(os, "replace", terminated)
+    with pytest.raises(SystemExit) as info:
+        render.write_text("new\n", target)
+    assert info.value.code == 128 + signal.SIGTERM
+    assert [p.name for p in tmp_path.iterdir()] == ["out.txt"] and target.read_text() == "previous\n"
+    assert signal.getsignal(signal.SIGTERM) == signal.SIG_DFL  # the handler is put back
+
+
+def test_output_naming_an_input_file_is_refused(tmp_path):
+    source = tmp_path / "pipe.toml"
+    source.write_text("x")
+    render.check_output(None, [str(source)])
+    render.check_output(tmp_path / "other.json", [str(source), "cylindrical-reed"])
+    with pytest.raises(DriftError, match="is the input file"):
+        render.check_output(str(source), ["cylindrical-reed", str(source)])
 
 
 def test_write_text_without_a_path_goes_to_standard_output(capsys):

@@ -44,7 +44,7 @@ def test_expansion_scales_positions_and_diameters(two_hole_pipe):
     assert np.allclose(big.radius_in_m, seg.radius_in_m * (1 + alpha * dT))
 
 
-def test_expanded_segments_use_the_grain_of_the_wall(tmp_path):
+def test_expanded_segments_use_the_grain_of_the_wall(outside, tmp_path):
     # Linear expansion L = L_ref (1 + alpha dT) (common practice): a wooden bore 20 K above its
     # reference temperature lengthens with the along-grain coefficient and widens with the
     # across-grain one, each from the materials table.
@@ -54,9 +54,15 @@ def test_expanded_segments_use_the_grain_of_the_wall(tmp_path):
     dT = 20.0
     hot = segments.expanded_segments(ins, lambda x: np.full(np.shape(x), ins.reference_temperature_k + dT))
     end = hot.start_m[-1] + hot.length_m[-1]
-    assert end == pytest.approx(0.6 * (1 + WOOD.expansion_per_k * dT), rel=1e-12)
-    np.testing.assert_allclose(hot.radius_in_m, plain.radius_in_m * (1 + WOOD.expansion_across_per_k * dT))
-    np.testing.assert_allclose(hot.hole_radius_m, plain.hole_radius_m * (1 + WOOD.expansion_across_per_k * dT))
+    law = "linear thermal expansion L = L_ref (1 + alpha dT) (common practice), alpha from the materials table"
+    outside.check(end, 0.6 * (1 + WOOD.expansion_per_k * dT), quantity="length of a 600 mm wooden bore 20 K above "
+                  "its reference temperature (along the grain)", source=law, rel=1e-12, unit="m")
+    outside.check(hot.radius_in_m, plain.radius_in_m * (1 + WOOD.expansion_across_per_k * dT),
+                  quantity="bore radii of a wooden bore 20 K above its reference temperature (across the grain)",
+                  source=law, rel=1e-7, unit="m")
+    outside.check(hot.hole_radius_m, plain.hole_radius_m * (1 + WOOD.expansion_across_per_k * dT),
+                  quantity="hole radii of a wooden bore 20 K above its reference temperature (across the grain)",
+                  source=law, rel=1e-7, unit="m")
     # at the reference temperature, or without a wall temperature, nothing moves
     same = segments.expanded_segments(ins, lambda x: np.full(np.shape(x), ins.reference_temperature_k))
     np.testing.assert_allclose(same.start_m, plain.start_m)

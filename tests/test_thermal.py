@@ -127,7 +127,7 @@ def test_energy_balance_closes_over_a_plan(material):
 
 
 @pytest.mark.parametrize("material", [BRASS, WOOD])
-def test_breath_heat_against_humid_air_enthalpy(material):
+def test_breath_heat_against_humid_air_enthalpy(outside, material):
     # The breath's heat from an independent humid-air model: CoolProp HAPropsSI (Hyland & Wexler
     # 1983 as in ASHRAE RP-1485), inlet saturated at 35 °C, outlet at the model's exit
     # temperature capped at saturation, condensate leaving as liquid at the exit temperature:
@@ -144,7 +144,10 @@ def test_breath_heat_against_humid_air_enthalpy(material):
     h_out = CP.HAPropsSI("H", "T", t_out, "P", p, "W", w_out)
     h_liquid = CP.PropsSI("H", "T", t_out, "Q", 0, "Water") - CP.PropsSI("H", "T", 273.16, "Q", 0, "Water")
     q = mdot_da * (h_in - h_out - (w_in - w_out) * h_liquid)
-    assert steady.breath_heat_w == pytest.approx(q, rel=0.01)
+    outside.check(steady.breath_heat_w, q,
+                  quantity="steady heat the breath gives a brass or wooden tube, 0.1 l/s at 20 °C, 50 % RH",
+                  source="humid-air enthalpy from CoolProp HAPropsSI (Hyland & Wexler 1983 as in ASHRAE RP-1485; "
+                  "independent library), water's from IAPWS-95 through CoolProp PropsSI", rel=0.01, unit="W")
     # Steady: everything the breath gives up leaves through the outer surface.
     assert steady.room_loss_w == pytest.approx(steady.breath_heat_w, rel=1e-6)
 
@@ -194,11 +197,11 @@ def test_time_constant_grows_with_wall_heat_capacity():
     assert wood > 3 * thin
 
 
-def test_lumped_cooling_against_the_exponential_law():
+def test_lumped_cooling_against_the_exponential_law(outside):
     # Lumped capacitance (Incropera et al. 2007, Eq. 5.6): theta/theta_i = exp(-h A t / (rho V c)).
     # One thin brass segment 0.2 K above the room, resting; h from the published correlations
     # (Churchill & Chu 1975, Churchill & Bernstein 1977, mixed with n = 4) plus radiation,
-    # evaluated here from CoolProp air at the room state.
+    # evaluated by drift from its gas table at the room state.
     length, d, w = 0.1, 0.015, 0.0005
     wall = Wall(np.array([length / 2]), np.array([length]), np.array([d / 2]), np.array([w]), BRASS,
                         np.array([1.0]))
@@ -222,7 +225,10 @@ def test_lumped_cooling_against_the_exponential_law():
     h = k / D * (nu_f**4 + nu_n**4) ** 0.25 + 4 * BRASS.emissivity * 5.670374419e-8 * ROOM.temperature_k**3
     capacity = BRASS.density * BRASS.specific_heat * math.pi * ((d / 2 + w) ** 2 - (d / 2) ** 2) * length
     tau = capacity / (h * math.pi * D * length)
-    np.testing.assert_allclose(theta[1:] / theta[0], np.exp(-tau_times[1:] / tau), rtol=0.01)
+    outside.check(theta[1:] / theta[0], np.exp(-tau_times[1:] / tau),
+                  quantity="fraction of a 0.2 K excess left in a resting thin brass segment after 10 and 20 min",
+                  source="lumped capacitance, Incropera et al. (2007), Eq. 5.6; h from Churchill & Chu (1975) and "
+                  "Churchill & Bernstein (1977) mixed with n = 4, plus radiation (Eq. 1.9)", rel=0.01)
 
 
 def test_breath_gives_way_to_room_air_at_rest():
@@ -277,8 +283,10 @@ def test_saturated_breath_condenses_from_the_first_segment_and_heats_the_wall():
 
 
 def test_warm_up_magnitudes_in_a_20_c_room():
-    # After several minutes of playing in a room near 20 °C the air near the mouthpiece is
-    # roughly 8-12 K above the room and much less at the far end (players' reports, from memory).
+    # A plausibility band, not an outside check (docs/validation.md lists the in-bore temperature
+    # as unchecked): players' reports (from memory) put the air near the mouthpiece roughly 8-12 K
+    # above a 20 °C room after several minutes of playing, and much less at the far end. The model
+    # gives 13.7 K here (docs/physics.md), above those reports; the band is 8-15 K.
     wall = tube(WOOD, flow_fraction=lambda x: flow_fraction_from_exits(x, np.linspace(0.25, 0.66, 19)))
     state = thermal.timeline(wall, ROOM, parse_plan("play:5"), [300.0], REED)[0]
     excess = state.profile.temperature_k - ROOM.temperature_k
