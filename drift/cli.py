@@ -28,6 +28,31 @@ INSTRUMENT_ARGUMENT = click.argument("instrument", required=False, default=None,
 OUTPUT_OPTION = click.option("--output", "output", type=click.Path(dir_okay=False, writable=True), default=None,
                              help="Write the result to this file instead of standard output.")
 
+PLOT_OPTION = click.option("--plot", "plot_path", type=click.Path(dir_okay=False, writable=True), default=None,
+                           metavar="FILE",
+                           help="Also draw the result as a picture, FILE.png or FILE.svg (needs the plot "
+                                "extra: pip install '.[plot]').")
+
+
+def check_plot(plot_path: str | None) -> None:
+    """Refuse a --plot name that is neither .png nor .svg before anything is computed."""
+    if plot_path is not None:
+        from drift import plot
+
+        try:
+            plot.picture_format(plot_path)
+        except plot.PlotError as error:
+            raise click.BadParameter(str(error).removeprefix(f"--plot {plot_path}: "), param_hint="--plot") from None
+
+
+def draw(kind: str, doc: dict, plot_path: str | None) -> None:
+    """Draw ``doc`` with :mod:`drift.plot`'s function ``kind`` to --plot's file, after the result is
+    shown: without matplotlib, the result stands and the picture fails with one line, exit 2."""
+    if plot_path is not None:
+        from drift import plot
+
+        plot.write_picture(getattr(plot, kind), doc, plot_path)
+
 
 def _range(name: str):
     """A click range type from the limits of the conditions (drift.constants.LIMITS)."""
@@ -201,18 +226,20 @@ class LazyProgress:
               help="In-tune threshold [cents] after the joint change (5 cents is common practice).")
 @FORMAT_OPTION
 @OUTPUT_OPTION
+@PLOT_OPTION
 @reports_errors
 def chart_command(instrument, climate_names, reference_name, a4_hz, show_offsets, tolerance_cents, fmt,
-                  output):
+                  output, plot_path):
     """Drift of every note across climates, with the tuning-joint change for each.
 
     INSTRUMENT is a bundled instrument name or an instrument file (default: the bundled
     default instrument, see `drift instruments`).
     """
-    from drift import advice, chart, climate, render
+    from drift import advice, chart, climate, files, render
     from drift.instrument import DEFAULT_INSTRUMENT, load_instrument
 
-    render.check_output(output, [instrument, reference_name, *climate_names])
+    check_plot(plot_path)
+    files.check_outputs([output, plot_path], [instrument, reference_name, *climate_names])
     inst = load_instrument(instrument or DEFAULT_INSTRUMENT)
     climates = ([climate.load_climate(c) for c in climate_names] if climate_names
                 else climate.bundled_climates())
@@ -226,6 +253,7 @@ def chart_command(instrument, climate_names, reference_name, a4_hz, show_offsets
     doc = render.chart_document(result, cautions)
     render.emit(doc, fmt, functools.partial(render.chart_table, offsets=show_offsets), render.chart_csv, output)
     warn_on_stderr(doc, fmt)
+    draw("chart", doc, plot_path)
 
 
 @main.command("warmup")
@@ -243,29 +271,29 @@ def chart_command(instrument, climate_names, reference_name, a4_hz, show_offsets
               help="Condition the drift is measured from. Default: the instrument's [design] condition.")
 @FORMAT_OPTION
 @OUTPUT_OPTION
+@PLOT_OPTION
 @reports_errors
-def warmup_command(instrument, climate_name, plan_text, step_s, reference_name, fmt, output):
+def warmup_command(instrument, climate_name, plan_text, step_s, reference_name, fmt, output, plot_path):
     """Pitch of every note over a play/rest plan, and the time it takes to settle.
 
     INSTRUMENT is a bundled instrument name or an instrument file. The bore warms while it is
     played and cools during rests; each row gives the drift in cents from the reference, and the
     report ends with the time each play phase takes to come within 2 cents of the steady state.
     """
-    from drift import climate, render, thermal, warmup
+    from drift import climate, files, render, thermal, warmup
     from drift.constants import ZERO_CELSIUS
-    from drift.errors import DriftError
     from drift.instrument import DEFAULT_INSTRUMENT, load_instrument
 
-    try:
-        plan = climate.parse_plan(plan_text)
-    except DriftError as error:
-        raise click.BadParameter(str(error), param_hint="--plan") from None
-    render.check_output(output, [instrument, climate_name, reference_name])
+    check_plot(plot_path)
+    plan = parse_plan_option(plan_text)
+    files.check_outputs([output, plot_path], [instrument, climate_name, reference_name])
     inst = load_instrument(instrument or DEFAULT_INSTRUMENT)
     design = inst.design
+    blowing = None
     if climate_name:
         where = climate.load_climate(climate_name)
         room, breath, climate_label = where.room, where.player.breath, where.name
+        blowing = where.player.blowing(inst.excitation)
     else:
         room, breath = design.room(), climate.DEFAULT_BREATH
         climate_label = (f"design room ({design.temperature_k - ZERO_CELSIUS:g} °C, "
@@ -282,13 +310,77 @@ def warmup_command(instrument, climate_name, plan_text, step_s, reference_name, 
     # about 32 for the settle time from cold (an estimate; the bar stops at its end).
     progress = LazyProgress(2 + 20 * len(plan) + 32, "computing")
     try:
-        result = warmup.warmup_timeline(inst, room, plan, step_s, breath, reference, progress=progress,
+        result = warmup.warmup_timeline(inst, room, plan, step_s, breath, reference, blowing, progress=progress,
                                         names=(climate_label, reference_label))
     finally:
         progress.close()
     doc = render.warmup_document(result)
     render.emit(doc, fmt, render.warmup_table, render.warmup_csv, output)
     warn_on_stderr(doc, fmt)
+    draw("warmup", doc, plot_path)
+
+
+def parse_plan_option(plan_text: str):
+    """The phases of --plan; a bad plan is a usage error naming --plan."""
+    from drift import climate
+    from drift.errors import DriftError
+
+    try:
+        return climate.parse_plan(plan_text)
+    except DriftError as error:
+        raise click.BadParameter(str(error), param_hint="--plan") from None
+
+
+@main.command("fit")
+@click.argument("log_path", metavar="LOG", type=click.Path(dir_okay=False))
+@INSTRUMENT_ARGUMENT
+@click.option("--climate", "climate_name", default=None, metavar="CLIMATE",
+              help="The room the readings were taken in, and the player the fit starts from: bundled "
+                   "climate name or climate file. Default: the instrument's [design] room.")
+@click.option("--plan", "plan_text", default=None, metavar="PLAN",
+              help="What the instrument did from minute 0, e.g. play:10,rest:3,play:5. Default: the "
+                   "log's state column (each change halfway between two readings), else playing "
+                   "throughout.")
+@click.option("--a4", "a4_hz", type=click.FloatRange(380.0, 480.0), default=None,
+              help="The tuner's A4 [Hz], 380 to 480. Default: the instrument's [design] a4_hz.")
+@click.option("--write-player", "player_path", type=click.Path(dir_okay=False, writable=True), default=None,
+              metavar="FILE", help="Write the fitted values as a player file, for a climate's "
+                                   "[player] player_file.")
+@FORMAT_OPTION
+@OUTPUT_OPTION
+@PLOT_OPTION
+@reports_errors
+def fit_command(log_path, instrument, climate_name, plan_text, a4_hz, player_path, fmt, output, plot_path):
+    """Fit the player's breath flow, breath temperature and the bore's heat exchange to a tuner log.
+
+    LOG is a CSV file with a header: minute,note,cents and optionally state (play or rest), one
+    tuner reading per row (docs/formats.md). INSTRUMENT is a bundled instrument name or an
+    instrument file. One constant offset (the player's embouchure) is fitted with them, so that
+    only the drift counts; each value is reported with its standard uncertainty.
+    """
+    from drift import climate, files, fit, render
+    from drift.instrument import DEFAULT_INSTRUMENT, load_instrument
+
+    check_plot(plot_path)
+    plan = parse_plan_option(plan_text) if plan_text else None
+    files.check_outputs([output, plot_path, player_path], [log_path, instrument, climate_name])
+    log = fit.read_tuner_log(log_path)
+    inst = load_instrument(instrument or DEFAULT_INSTRUMENT)
+    if climate_name:
+        where = climate.load_climate(climate_name)
+        room, player, label = where.room, where.player, where.name
+    else:
+        room, player, label = inst.design.room(), climate.Player(), "design room"
+    progress = LazyProgress(4 * 8, "fitting")
+    try:
+        result = fit.fit_player(inst, room, log, plan, player, a4_hz, progress, names=(label, str(log_path)))
+    finally:
+        progress.close()
+    doc = render.fit_document(result)
+    if player_path:
+        render.write_text(render.player_file_text(doc), player_path)
+    render.emit(doc, fmt, render.fit_table, render.fit_csv, output)
+    draw("fit", doc, plot_path)
 
 
 @main.command("resonances")

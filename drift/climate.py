@@ -13,6 +13,7 @@ ISO 2533:1975. Standard Atmosphere.
 
 from __future__ import annotations
 
+import dataclasses
 import math
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -23,11 +24,19 @@ import numpy as np
 from drift import constants as K
 from drift.constants import DEFAULT_CO2_FRACTION, LIMITS, STANDARD_PRESSURE, ZERO_CELSIUS
 from drift.errors import InputFileError, OutOfRangeError, check_range
-from drift.files import Table, bundled_files, bundled_folder, load_named
+from drift.files import Table, bundled_files, bundled_folder, load_named, read_toml
 
 TOP_KEYS = ("name", "description", "air", "player")
 AIR_KEYS = ("temperature_c", "relative_humidity_pct", "pressure_kpa", "altitude_m", "co2_ppm")
-PLAYER_KEYS = ("playing", "minutes_played", "breath_temperature_c", "breath_co2_pct", "breath_o2_pct")
+PLAYER_KEYS = ("playing", "minutes_played", "breath_temperature_c", "breath_co2_pct", "breath_o2_pct",
+               "player_file")
+#: Keys of a player file (``drift fit --write-player``); its ``[fit]`` table records the fit.
+PLAYER_FILE_KEYS = ("name", "description", "breath_flow_l_s", "breath_temperature_c", "heat_exchange_factor",
+                    "fit")
+PLAYER_FIT_KEYS = ("instrument", "climate", "log", "readings", "rms_cents", "offset_cents",
+                   "breath_flow_sd_l_s", "breath_temperature_sd_c", "heat_exchange_factor_sd")
+#: Largest heat-exchange factor a player file may give [-].
+LARGEST_HEAT_FACTOR = 100.0
 
 #: Relative humidity assumed when a climate file gives none [0-1] (common practice for indoor air).
 DEFAULT_RELATIVE_HUMIDITY = 0.5
@@ -218,11 +227,27 @@ class Player:
     minutes_played : float or None
         Minutes of playing from a cold start; None: played long enough to reach steady state.
     breath : Breath
+    flow_m3_s : float or None
+        Mean breath flow into the bore while playing [m^3/s] (a player file's); None: the
+        excitation's default (:data:`DEFAULT_BLOWING`).
+    heat_transfer_factor : float
+        Multiplier [-] on the bore's internal heat exchange (a player file's; default 1).
     """
 
     playing: bool = True
     minutes_played: float | None = None
     breath: Breath = DEFAULT_BREATH
+    flow_m3_s: float | None = None
+    heat_transfer_factor: float = 1.0
+
+    def blowing(self, excitation: str) -> Blowing:
+        """The excitation's default :class:`Blowing` with this player's breath flow and heat
+        exchange factor."""
+        base = default_blowing(excitation)
+        flow = base.flow_m3_s if self.flow_m3_s is None else self.flow_m3_s
+        if (flow, self.heat_transfer_factor) == (base.flow_m3_s, base.heat_transfer_factor):
+            return base
+        return dataclasses.replace(base, flow_m3_s=flow, heat_transfer_factor=self.heat_transfer_factor)
 
 
 @dataclass(frozen=True)
@@ -266,9 +291,16 @@ def parse_climate(data: dict, path: str | Path) -> Climate:
 
     player_table = top.table("player", PLAYER_KEYS)
     default = DEFAULT_BREATH
+    breath_c = player_table.number("breath_temperature_c", default.temperature_k - ZERO_CELSIUS,
+                                   **_limits("temperature_c"))
+    fitted = {}
+    if player_table.has("player_file"):
+        if player_table.has("breath_temperature_c"):
+            player_table.fail("player_file", "and breath_temperature_c exclude each other; the player file "
+                                             "gives the breath temperature")
+        fitted = load_player_file(Path(path).parent / player_table.string("player_file"))
     breath = Breath(
-        temperature_k=player_table.number("breath_temperature_c", default.temperature_k - ZERO_CELSIUS,
-                                          **_limits("temperature_c")) + ZERO_CELSIUS,
+        temperature_k=fitted.get("breath_temperature_k", breath_c + ZERO_CELSIUS),
         co2_fraction=player_table.number("breath_co2_pct", default.co2_fraction * 100,
                                          **_limits("breath_co2_pct")) / 100,
         o2_fraction=player_table.number("breath_o2_pct", default.o2_fraction * 100,
@@ -279,8 +311,27 @@ def parse_climate(data: dict, path: str | Path) -> Climate:
         minutes_played=player_table.number("minutes_played", None, low=0.0, high=K.LONGEST_PLAN_S / 60,
                                            unit="min"),
         breath=breath,
+        flow_m3_s=fitted.get("flow_m3_s"),
+        heat_transfer_factor=fitted.get("heat_transfer_factor", 1.0),
     )
     return Climate(name, room, player, description, str(path))
+
+
+def load_player_file(path: str | Path) -> dict:
+    """The values of a player file (docs/formats.md, written by ``drift fit --write-player``):
+    ``flow_m3_s`` [m^3/s], ``breath_temperature_k`` [K] and ``heat_transfer_factor`` [-]. Its
+    ``[fit]`` table (how the values were fitted) is checked for known keys and not used."""
+    top = Table(read_toml(path, "player file"), path, "", PLAYER_FILE_KEYS)
+    top.string("name", default="")
+    top.string("description", default="")
+    top.table("fit", PLAYER_FIT_KEYS)
+    return {
+        "flow_m3_s": top.number("breath_flow_l_s", required=True, low=0.0, high=10.0, unit="L/s") * 1e-3,
+        "breath_temperature_k": top.number("breath_temperature_c", required=True,
+                                           **_limits("temperature_c")) + ZERO_CELSIUS,
+        "heat_transfer_factor": top.number("heat_exchange_factor", required=True, low=1e-3,
+                                           high=LARGEST_HEAT_FACTOR),
+    }
 
 
 def _bundled_dir():

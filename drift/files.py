@@ -1,4 +1,5 @@
-"""Reading the project's TOML files (instruments, climates, materials) with strict, clear checks.
+"""Reading the project's TOML files (instruments, climates, materials) with strict, clear checks,
+and writing output files whole or not at all.
 
 Every problem raises :class:`drift.errors.InputFileError` with a message that names the file, the
 key (as ``[table] key``) and what is allowed. Unknown keys are errors, with a did-you-mean
@@ -9,31 +10,36 @@ from __future__ import annotations
 
 import difflib
 import math
+import os
+import signal
 import stat
+import tempfile
+import threading
 import tomllib
 from importlib import resources
 from pathlib import Path
 
-from drift.errors import InputFileError
+from drift.errors import DriftError, InputFileError
 
 
 #: Largest input file read [bytes]: instrument, climate and materials files are a few kB.
 MAX_FILE_BYTES = 1_000_000
 
 
-def read_toml(path: str | Path, what: str = "file") -> dict:
-    """Parse a TOML file; unreadable or malformed files raise InputFileError naming the file.
+def read_text_file(path: str | Path, what: str = "file") -> str:
+    """The text of an input file; problems raise InputFileError naming the file.
 
     Only regular files are read (a folder, device or pipe is refused before reading, so nothing
-    blocks), at most :data:`MAX_FILE_BYTES`, decoded as UTF-8.
+    blocks), at most :data:`MAX_FILE_BYTES`, decoded as UTF-8 (a leading byte-order mark is
+    dropped).
     """
     path = Path(path)
     try:
         info = path.stat()
         if stat.S_ISDIR(info.st_mode):
-            raise InputFileError(f"{path}: is a folder; give a {what} (a .toml file)")
+            raise InputFileError(f"{path}: is a folder; give {_article(what)} {what}")
         if not stat.S_ISREG(info.st_mode):
-            raise InputFileError(f"{path}: is not a regular file (a device or pipe); give a {what} (a .toml file)")
+            raise InputFileError(f"{path}: is not a regular file (a device or pipe); give {_article(what)} {what}")
         with path.open("rb") as stream:
             raw = stream.read(MAX_FILE_BYTES + 1)
     except FileNotFoundError:
@@ -41,12 +47,21 @@ def read_toml(path: str | Path, what: str = "file") -> dict:
     except OSError as error:
         raise InputFileError(f"{path}: cannot read the {what}: {error.strerror or error}") from None
     if len(raw) > MAX_FILE_BYTES:
-        raise InputFileError(f"{path}: is larger than {MAX_FILE_BYTES // 1_000_000} MB; a {what} is a short text file")
+        raise InputFileError(f"{path}: is larger than {MAX_FILE_BYTES // 1_000_000} MB; {_article(what)} {what} is "
+                             "a short text file")
     try:
-        text = raw.decode("utf-8")
+        return raw.decode("utf-8-sig")
     except UnicodeDecodeError as error:
         raise InputFileError(f"{path}: is not UTF-8 text (byte {error.start + 1}); save it as UTF-8") from None
-    return read_toml_text(text, str(path), what)
+
+
+def _article(word: str) -> str:
+    return "an" if word[:1].lower() in "aeiou" else "a"
+
+
+def read_toml(path: str | Path, what: str = "file") -> dict:
+    """Parse a TOML file (:func:`read_text_file`, :func:`read_toml_text`)."""
+    return read_toml_text(read_text_file(path, what), str(Path(path)), what)
 
 
 def read_toml_text(text: str, label: str, what: str = "file") -> dict:
@@ -216,3 +231,64 @@ def _span(low: float, high: float, unit: str) -> str:
     if math.isinf(low):
         return f"{high:g}{unit} or less"
     return f"{low:g} to {high:g}{unit}"
+
+
+# --------------------------------------------------------------------------------------------
+# Writing output files
+# --------------------------------------------------------------------------------------------
+
+
+def check_outputs(outputs, inputs) -> None:
+    """Refuse an output file (``--output``, ``--plot``...) that names one of the input files
+    (a bundled name or a path each)."""
+    for output in outputs:
+        if output is None:
+            continue
+        out = os.path.realpath(output)
+        for source in inputs:
+            if source and os.path.isfile(str(source)) and os.path.realpath(str(source)) == out:
+                raise DriftError(f"output {output} is the input file {source}; write the result to another file")
+
+
+def _new_file_mode() -> int:
+    """The mode a new file gets under the process's umask (0o666 & ~umask)."""
+    umask = os.umask(0)
+    os.umask(umask)
+    return 0o666 & ~umask
+
+
+def _terminate(signum, frame):
+    raise SystemExit(128 + signum)
+
+
+def write_file(path: str | os.PathLike, write) -> None:
+    """Write a file atomically: ``write(stream)`` fills a temporary binary file in the target's
+    folder, which replaces the target only when complete.
+
+    A failed run never leaves a half-written or emptied output file, and SIGTERM during the write
+    removes the temporary file too. A symbolic link is written through (its target is replaced,
+    the link stays); an existing file keeps its mode, a new one gets the umask's. Errors raise
+    DriftError naming ``path`` as given.
+    """
+    target = Path(os.path.realpath(path))
+    try:
+        mode = stat.S_IMODE(target.stat().st_mode) if target.exists() else _new_file_mode()
+        handle, temporary = tempfile.mkstemp(dir=target.parent, prefix=f".{target.name}.", suffix=".tmp")
+    except OSError as error:
+        raise DriftError(f"{path}: cannot write the output: {error.strerror or error}") from None
+    main_thread = threading.current_thread() is threading.main_thread()
+    previous = signal.signal(signal.SIGTERM, _terminate) if main_thread else None
+    try:
+        os.fchmod(handle, mode)
+        with os.fdopen(handle, "wb") as stream:
+            write(stream)
+        os.replace(temporary, target)
+    except OSError as error:
+        Path(temporary).unlink(missing_ok=True)
+        raise DriftError(f"{path}: cannot write the output: {error.strerror or error}") from None
+    except BaseException:
+        Path(temporary).unlink(missing_ok=True)
+        raise
+    finally:
+        if main_thread:
+            signal.signal(signal.SIGTERM, previous)

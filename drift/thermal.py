@@ -614,9 +614,10 @@ def bore_profile(instrument: Instrument, room: Room, playing: bool = True, minut
 
 def climate_profile(instrument: Instrument, climate: Climate) -> BoreProfile:
     """The bore profile of an instrument in a :class:`drift.climate.Climate`: its room, and its
-    player's ``playing``, ``minutes_played`` and breath (:func:`bore_profile`)."""
+    player's ``playing``, ``minutes_played``, breath and blowing (:func:`bore_profile`)."""
     p = climate.player
-    return bore_profile(instrument, climate.room, p.playing, p.minutes_played, p.breath)
+    return bore_profile(instrument, climate.room, p.playing, p.minutes_played, p.breath,
+                        p.blowing(instrument.excitation))
 
 
 def design_profile(instrument: Instrument, breath: Breath = DEFAULT_BREATH) -> BoreProfile:

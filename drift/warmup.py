@@ -232,6 +232,24 @@ def phase_pitch(pitch_at, start_s: float, times_s, tolerance_cents: float = KNOT
     return 2.0 ** pchip(grid[knots], known[knots], times)
 
 
+def plan_frequencies(instrument: Instrument, trajectory: thermal.Trajectory, times_s, progress=None) -> np.ndarray:
+    """Frequencies [Hz] (t, notes) of every note at the ascending ``times_s`` [s] of a thermal
+    trajectory, phase by phase from a few full resonance searches (:func:`phase_pitch`)."""
+    times = np.asarray(times_s, dtype=float)
+    freqs = np.empty((len(times), len(instrument.fingerings())))
+    phase_of_row = np.array([trajectory.phase_of(t) for t in times])
+    for index in range(len(trajectory.plan)):
+        rows = phase_of_row == index
+        if not np.any(rows):
+            continue
+
+        def pitch_at(ts, index=index):
+            return pitch.frequencies_hz(instrument, [trajectory.state(t, index).profile for t in ts])
+
+        freqs[rows] = phase_pitch(pitch_at, trajectory.starts_s[index], times[rows], progress=progress)
+    return freqs
+
+
 def settle_from_cold(instrument: Instrument, room: Room, steady_hz, tolerance_cents: float = K.SETTLE_CENTS,
                      breath: Breath = DEFAULT_BREATH, blowing: Blowing | None = None,
                      progress=None, resolution_s: float = 5.0) -> float | None:
@@ -349,17 +367,8 @@ def warmup_timeline(instrument: Instrument, room: Room, plan: Sequence[Phase] | 
     ref, steady_hz = pitch.frequencies_hz(instrument, [reference, steady.profile])
     if progress is not None:
         progress(2)
-    freqs = np.empty((len(times), len(notes)))
+    freqs = plan_frequencies(instrument, trajectory, times, progress)
     phase_of_row = np.array([trajectory.phase_of(t) for t in times])
-    for index in range(len(plan)):
-        rows = phase_of_row == index
-        if not np.any(rows):
-            continue
-
-        def pitch_at(ts, index=index):
-            return pitch.frequencies_hz(instrument, [trajectory.state(t, index).profile for t in ts])
-
-        freqs[rows] = phase_pitch(pitch_at, trajectory.starts_s[index], times[rows], progress=progress)
     drift = cents(freqs, ref[None, :])
     steady_cents = cents(freqs, steady_hz[None, :])
     settle = []

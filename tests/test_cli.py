@@ -327,7 +327,7 @@ def test_output_may_not_overwrite_the_input(cli, tmp_path, command):
     source = tmp_path / "pipe.toml"
     source.write_text(TWO_HOLE_PIPE)
     result = cli(command, source, "--output", source, code=None)
-    assert_refused(result, f"--output {source} is the input file")
+    assert_refused(result, f"output {source} is the input file")
     assert source.read_text() == TWO_HOLE_PIPE
 
 

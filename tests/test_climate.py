@@ -146,3 +146,44 @@ def test_default_blowing_by_excitation():
     assert jet.inlet_breath_fraction == 0.5 and jet.flow_m3_s < climate.default_blowing("reed").flow_m3_s
     with pytest.raises(InputFileError, match="reed, lips, jet"):
         climate.default_blowing("bow")
+
+
+#: A player file as ``drift fit --write-player`` writes it (docs/formats.md).
+PLAYER_FILE = """name = "me"
+breath_flow_l_s = 0.12
+breath_temperature_c = 33.5
+heat_exchange_factor = 1.4
+[fit]
+readings = 12
+rms_cents = 0.6
+"""
+
+
+def test_player_file_gives_breath_flow_and_heat_exchange(write_toml):
+    write_toml(PLAYER_FILE, "me.toml")
+    c = climate.load_climate(str(write_toml('name = "x"\n[air]\ntemperature_c = 18\n'
+                                            '[player]\nplayer_file = "me.toml"\n', "room.toml")))
+    assert c.player.breath.temperature_k == pytest.approx(306.65)
+    assert c.player.breath.co2_fraction == climate.DEFAULT_BREATH.co2_fraction
+    blowing = c.player.blowing("jet")
+    assert blowing.flow_m3_s == pytest.approx(0.12e-3)
+    assert blowing.heat_transfer_factor == pytest.approx(1.4)
+    # The excitation's other values stay (a jet's half-breath inlet).
+    assert blowing.inlet_breath_fraction == climate.default_blowing("jet").inlet_breath_fraction
+    # Without a player file, the excitation's default blowing.
+    assert climate.Player().blowing("reed") == climate.default_blowing("reed")
+
+
+@pytest.mark.parametrize("player, needle", [
+    ('player_file = "me.toml"\nbreath_temperature_c = 30\n', "exclude each other"),
+    ('player_file = "missing.toml"\n', "no such player file"),
+    ('player_file = "bad.toml"\n', "breath_flow_l_s = 20 is outside the allowed range 0 to 10 L/s"),
+    ('player_file = "odd.toml"\n', "flow_rate is not a known key"),
+])
+def test_bad_player_files_are_named(write_toml, player, needle):
+    write_toml(PLAYER_FILE, "me.toml")
+    write_toml(PLAYER_FILE.replace("0.12", "20"), "bad.toml")
+    write_toml(PLAYER_FILE.replace('name = "me"', "flow_rate = 1"), "odd.toml")
+    path = write_toml(f'name = "x"\n[air]\ntemperature_c = 18\n[player]\n{player}', "room.toml")
+    with pytest.raises(InputFileError, match=needle.replace("(", r"\(")):
+        climate.load_climate(str(path))

@@ -7,7 +7,7 @@ import tomllib
 import pytest
 
 from drift import files
-from drift.errors import InputFileError
+from drift.errors import DriftError, InputFileError
 from drift.files import Table
 
 
@@ -196,3 +196,12 @@ def test_strings_booleans_and_tables(top):
         items[1].number("size")
     with pytest.raises(InputFileError, match="f.toml: name must be an array of tables"):
         top.tables("name", ())
+
+
+def test_output_naming_an_input_file_is_refused(tmp_path):
+    source = tmp_path / "pipe.toml"
+    source.write_text("x")
+    files.check_outputs([None], [str(source)])
+    files.check_outputs([tmp_path / "other.json", None], [str(source), "cylindrical-reed"])
+    with pytest.raises(DriftError, match="is the input file"):
+        files.check_outputs([None, str(source)], ["cylindrical-reed", str(source)])
