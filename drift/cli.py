@@ -54,12 +54,45 @@ def draw(kind: str, doc: dict, plot_path: str | None) -> None:
         plot.write_picture(getattr(plot, kind), doc, plot_path)
 
 
+class FiniteRange(click.FloatRange):
+    """click's FloatRange that also refuses NaN and infinity (which compare as in range)."""
+
+    def convert(self, value, param, ctx):
+        number = super().convert(value, param, ctx)
+        if number != number or number in (float("inf"), float("-inf")):
+            self.fail(f"{value!r} is not a finite number; allowed: {self._describe_range()}", param, ctx)
+        return number
+
+
 def _range(name: str):
     """A click range type from the limits of the conditions (drift.constants.LIMITS)."""
     from drift.constants import LIMITS
 
     low, high, _ = LIMITS[name]
-    return click.FloatRange(low, high)
+    return FiniteRange(low, high)
+
+
+class Commands(click.Group):
+    """The drift group: a usage error (unknown option, bad value) is one line on stderr naming the
+    option and what is allowed, then exit status 2, instead of click's usage block."""
+
+    def main(self, args=None, prog_name=None, complete_var=None, standalone_mode=True, **extra):
+        if not standalone_mode:
+            return super().main(args, prog_name, complete_var, standalone_mode, **extra)
+        try:
+            code = super().main(args, prog_name, complete_var, standalone_mode=False, **extra)
+        except click.UsageError as error:
+            path = error.ctx.command_path.split(" ", 1) if error.ctx is not None else []
+            where = " ".join(["drift", *path[1:]])
+            click.echo(f"drift: error: {error.format_message()} ('{where} --help' lists the options)", err=True)
+            sys.exit(2)
+        except click.ClickException as error:
+            error.show()
+            sys.exit(error.exit_code)
+        except click.exceptions.Abort:
+            click.echo("Aborted!", err=True)
+            sys.exit(1)
+        sys.exit(code if isinstance(code, int) else 0)
 
 
 def warn_on_stderr(doc: dict, fmt: str) -> None:
@@ -122,7 +155,7 @@ def air_options(command):
     return command
 
 
-@click.group(context_settings={"help_option_names": ["-h", "--help"], "max_content_width": 100})
+@click.group(cls=Commands, context_settings={"help_option_names": ["-h", "--help"], "max_content_width": 100})
 @click.version_option(__version__, "--version", prog_name="drift")
 @click.option("--gas-properties", "gas_source", type=click.Choice(["table", "coolprop"]), default="table",
               show_default=True,
@@ -214,13 +247,13 @@ class LazyProgress:
               help="Bundled climate name or climate file; repeat for several. Default: every bundled climate.")
 @click.option("--reference", "reference_name", default=None, metavar="CLIMATE",
               help="Condition the drift is measured from. Default: the instrument's [design] condition.")
-@click.option("--a4", "a4_hz", type=click.FloatRange(380.0, 480.0), default=None,
+@click.option("--a4", "a4_hz", type=FiniteRange(380.0, 480.0), default=None,
               help="Pitch of A4 for the offset from equal temperament [Hz], 380 to 480. Default: the "
                    "instrument's [design] a4_hz (440 when the file gives none, ISO 16).")
 @click.option("--offsets", "show_offsets", is_flag=True,
               help="Add a table of each note's offset from equal temperament [cents] at that A4, at "
                    "the reference and in each climate.")
-@click.option("--tolerance", "tolerance_cents", type=click.FloatRange(0.0, 100.0, min_open=True),
+@click.option("--tolerance", "tolerance_cents", type=FiniteRange(0.0, 100.0, min_open=True),
               default=TOLERANCE_CENTS,
               show_default=True,
               help="In-tune threshold [cents] after the joint change (5 cents is common practice).")
@@ -265,7 +298,7 @@ def chart_command(instrument, climate_names, reference_name, a4_hz, show_offsets
 @click.option("--plan", "plan_text", default="play:20", show_default=True, metavar="PLAN",
               help="Phases in minutes, e.g. play:10,rest:3,play:5; the instrument starts at room "
                    "temperature, full of room air.")
-@click.option("--step", "step_s", type=click.FloatRange(1.0, 3600.0), default=30.0, show_default=True,
+@click.option("--step", "step_s", type=FiniteRange(1.0, 3600.0), default=30.0, show_default=True,
               help="Time between rows [s], 1 to 3600.")
 @click.option("--reference", "reference_name", default=None, metavar="CLIMATE",
               help="Condition the drift is measured from. Default: the instrument's [design] condition.")
@@ -341,7 +374,7 @@ def parse_plan_option(plan_text: str):
               help="What the instrument did from minute 0, e.g. play:10,rest:3,play:5. Default: the "
                    "log's state column (each change halfway between two readings), else playing "
                    "throughout.")
-@click.option("--a4", "a4_hz", type=click.FloatRange(380.0, 480.0), default=None,
+@click.option("--a4", "a4_hz", type=FiniteRange(380.0, 480.0), default=None,
               help="The tuner's A4 [Hz], 380 to 480. Default: the instrument's [design] a4_hz.")
 @click.option("--write-player", "player_path", type=click.Path(dir_okay=False, writable=True), default=None,
               metavar="FILE", help="Write the fitted values as a player file, for a climate's "

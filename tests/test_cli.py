@@ -465,3 +465,17 @@ def test_bundled_instruments_sound_near_their_names(cli):
     for name in ("cylindrical-reed", "conical-reed", "side-blown-flute"):
         doc = json.loads(cli("resonances", name, "--count", "1", "--format", "json").stdout)
         assert doc["name_warnings"] == [], name
+
+
+@pytest.mark.parametrize("args, words", [
+    (["chart", "--a4", "nan"], ["--a4", "not a finite number", "380.0<=x<=480.0", "drift chart --help"]),
+    (["chart", "--tolerance", "inf"], ["--tolerance", "0.0<x<=100.0"]),
+    (["warmup", "--step", "nan"], ["--step", "not a finite number"]),
+    (["air", "--temp", "-inf"], ["--temp", "-30.0<=x<=60.0"]),
+    (["chart", "--bogus"], ["No such option '--bogus'", "drift chart --help"]),
+    (["nosuch"], ["No such command 'nosuch'"]),
+])
+def test_option_errors_are_one_line_and_refuse_nan(cli, args, words):
+    result = cli(*args, code=None)
+    assert_refused(result, *words)
+    assert len(result.stderr.strip().splitlines()) == 1 and "Usage:" not in result.stderr
