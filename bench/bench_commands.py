@@ -2,9 +2,9 @@
 
 Prints, per command, the median (and range) of the wall time and of the CPU time (user + system
 of the child process), and how the time of `drift chart` and `drift warmup` grows with notes x
-climates and with time steps.
+climates and with time steps, and `drift design` and `drift retune` on every bundled instrument.
 
-Run from anywhere with drift installed:  python bench/bench_commands.py [--repeat 5]
+Run from anywhere with drift installed:  python bench/bench_commands.py [--repeat 5] [--desk]
 """
 
 from __future__ import annotations
@@ -14,7 +14,9 @@ import os
 import statistics
 import subprocess
 import sys
+import tempfile
 import time
+from pathlib import Path
 
 COMMANDS = [
     ["--help"],
@@ -48,8 +50,13 @@ def measure(args: list[str], repeat: int) -> str:
 def main() -> None:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("--repeat", type=int, default=5, help="runs per command (median reported)")
-    repeat = parser.parse_args().repeat
+    parser.add_argument("--desk", action="store_true", help="only drift design and drift retune")
+    options = parser.parse_args()
+    repeat = options.repeat
     print(f"python {sys.version.split()[0]}, {os.cpu_count()} cores, median of {repeat} runs")
+    if options.desk:
+        desk(repeat)
+        return
     for args in COMMANDS:
         print(measure(args, repeat), flush=True)
     print("growth with climates (drift chart, cylindrical-reed, 18 notes):")
@@ -61,6 +68,19 @@ def main() -> None:
     print("growth with time steps (drift warmup --plan play:60):")
     for step in ("60", "20", "10"):
         print("  " + measure(["warmup", "--plan", "play:60", "--step", step], repeat), flush=True)
+    desk(repeat)
+
+
+def desk(repeat: int) -> None:
+    """`drift design` (alone and with two climates) and `drift retune` on every bundled instrument."""
+    print("the maker's desk, every bundled instrument:")
+    output = Path(tempfile.mkdtemp()) / "retuned.toml"
+    for name in ("conical-reed", "cylindrical-reed", "side-blown-flute"):
+        print("  " + measure(["design", name], repeat), flush=True)
+        print("  " + measure(["design", name, "--climate", "winter-church", "--climate", "sunny-lawn"], repeat),
+              flush=True)
+        print("  " + measure(["retune", name, "--room-temp", "16", "--output", str(output)], repeat)
+              .replace(str(output), "FILE"), flush=True)
 
 
 if __name__ == "__main__":

@@ -13,9 +13,10 @@ The layers, each a module answering one physical question, from the bottom up:
 - :mod:`drift.bore_state`, :mod:`drift.thermal` (the air and wall along the bore; the heat
   balance of the played bore that gives them)
 - :mod:`drift.pitch` (playing frequencies for a bore state)
-- jobs: :mod:`drift.chart`, :mod:`drift.warmup`, :mod:`drift.fit`, :mod:`drift.layout`,
-  :mod:`drift.advice`
-- edge: :mod:`drift.render`, :mod:`drift.plot`, :mod:`drift.cli`, and this package's public API.
+- jobs: :mod:`drift.chart`, :mod:`drift.design`, :mod:`drift.warmup`, :mod:`drift.fit`,
+  :mod:`drift.layout`, :mod:`drift.advice`
+- edge: :mod:`drift.render`, :mod:`drift.render_design`, :mod:`drift.plot`, :mod:`drift.cli`, and
+  this package's public API.
 
 The public API below is imported on first use, so ``import drift`` is cheap and never loads
 CoolProp (which is loaded only when air properties are first computed).
@@ -54,6 +55,13 @@ _API = {
     "Chart": "chart",
     "DriftRow": "chart",
     "ClimateSummary": "chart",
+    "design_study": "design",
+    "DesignResult": "design",
+    "NoteSensitivity": "design",
+    "sensitivities": "design",
+    "ClimateOffset": "design",
+    "retune": "design",
+    "RetuneResult": "design",
     "warmup_timeline": "warmup",
     "Warmup": "warmup",
     "read_tuner_log": "fit",

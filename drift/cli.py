@@ -416,6 +416,101 @@ def fit_command(log_path, instrument, climate_name, plan_text, a4_hz, player_pat
     draw("fit", doc, plot_path)
 
 
+A4_OPTION = click.option("--a4", "a4_hz", type=FiniteRange(380.0, 480.0), default=None,
+                         help="Pitch of A4 of equal temperament [Hz], 380 to 480. Default: the instrument's "
+                              "[design] a4_hz (440 when the file gives none, ISO 16).")
+RH_OPTION = click.option("--rh", "rh_pct", type=_range("relative_humidity_pct"), default=None,
+                         help="Relative humidity of the room [%], 0 to 100. Default: the instrument's "
+                              "[design] relative_humidity_pct.")
+AT_REST_OPTION = click.option("--at-rest", is_flag=True,
+                              help="In tune at rest (bore full of room air at room temperature) instead of "
+                                   "played to the steady state.")
+
+
+@main.command("design")
+@INSTRUMENT_ARGUMENT
+@A4_OPTION
+@RH_OPTION
+@click.option("--climate", "climate_names", multiple=True, metavar="CLIMATE",
+              help="A customer's climate (bundled name or climate file); repeat for several. Adds each "
+                   "climate's offsets and the compromise design temperature.")
+@AT_REST_OPTION
+@FORMAT_OPTION
+@OUTPUT_OPTION
+@reports_errors
+def design_command(instrument, a4_hz, rh_pct, climate_names, at_rest, fmt, output):
+    """The room temperature the instrument is in tune at, and how each note moves there.
+
+    INSTRUMENT is a bundled instrument name or an instrument file. The design temperature is the
+    room temperature between -10 and 45 °C at which the notes, played to the steady state, are in
+    tune on average (mean offset zero from equal temperament at A4). Each note's sensitivity
+    there is given per K of room temperature, per 10 % RH, per km of altitude and per % of CO2
+    in the breath. With --climate, each climate's offsets for that design and the compromise
+    design temperature that keeps the worst climate's mean offset smallest.
+    """
+    from drift import climate, design, files, render, render_design
+    from drift.instrument import DEFAULT_INSTRUMENT, load_instrument
+
+    files.check_outputs([output], [instrument, *climate_names])
+    inst = load_instrument(instrument or DEFAULT_INSTRUMENT)
+    climates = [climate.load_climate(c) for c in climate_names]
+    # batches of bore states: the scan, about three steps of the root, the sensitivities; with
+    # climates, theirs and about three steps of the compromise (an estimate: the bar stops at its end)
+    progress = LazyProgress(5 + (4 if climates else 0), "computing")
+    try:
+        result = design.design_study(inst, climates, a4_hz, None if rh_pct is None else rh_pct / 100.0,
+                                     playing=not at_rest, progress=progress)
+    finally:
+        progress.close()
+    table = functools.partial(render_design.design_table,
+                              state="at rest" if at_rest else "played to the steady state",
+                              compromise_worst_cents=result.compromise_worst_cents)
+    render.emit(render_design.design_document(result), fmt, table, render_design.design_csv, output)
+
+
+@main.command("retune")
+@INSTRUMENT_ARGUMENT
+@click.option("--room-temp", "room_temp_c", type=_range("temperature_c"), required=True,
+              help="Room temperature of the new design condition [°C], -30 to 60.")
+@RH_OPTION
+@A4_OPTION
+@AT_REST_OPTION
+@click.option("--output", "output", type=click.Path(dir_okay=False, writable=True), required=True,
+              help="The new instrument file to write (never the input file).")
+@FORMAT_OPTION
+@reports_errors
+def retune_command(instrument, room_temp_c, rh_pct, a4_hz, at_rest, output, fmt):
+    """Move the holes (and the bore length at the tuning joint) for another design condition.
+
+    INSTRUMENT is a bundled instrument name or an instrument file. Every note is brought as close
+    to equal temperament as the holes allow at the new condition (played to the steady state
+    unless --at-rest); the new instrument file, whose [design] is that condition, goes to
+    --output, and the offsets before and after and the hole moves to standard output.
+    """
+    from importlib import resources
+    from pathlib import Path
+
+    from drift import design, files, render, render_design
+    from drift.constants import ZERO_CELSIUS
+    from drift.errors import DriftError
+    from drift.instrument import DEFAULT_INSTRUMENT, load_instrument
+
+    inst = load_instrument(instrument or DEFAULT_INSTRUMENT)
+    bundled = resources.files("drift.data.instruments") / f"{inst.name}.toml"
+    files.check_outputs([output], [instrument, inst.source, str(bundled)])
+    if not Path(output).resolve().parent.is_dir():
+        raise DriftError(f"--output {output}: the folder {Path(output).parent} does not exist")
+    progress = LazyProgress(100, "retuning")   # evaluations of the notes: 70-100 on the bundled instruments
+    try:
+        result = design.retune(inst, room_temp_c + ZERO_CELSIUS, None if rh_pct is None else rh_pct / 100.0,
+                               a4_hz, playing=not at_rest, progress=progress)
+    finally:
+        progress.close()
+    doc = render_design.retune_document(result, output)
+    render.write_text(render_design.retuned_toml(doc, result.instrument, inst.source), output)
+    render.emit(doc, fmt, render_design.retune_table, render_design.retune_csv)
+
+
 @main.command("resonances")
 @INSTRUMENT_ARGUMENT
 @click.option("--note", "note_name", default=None, metavar="NAME",

@@ -57,6 +57,17 @@ def pressure_from_altitude(altitude_m):
     return K.STANDARD_PRESSURE * (1.0 - K.LAPSE_RATE * h / K.STANDARD_TEMPERATURE) ** exponent
 
 
+def altitude_from_pressure(pressure_pa):
+    """Geometric altitude [m] of the ISO 2533 standard atmosphere at a static pressure [Pa]: the
+    inverse of :func:`pressure_from_altitude` (same equations and constants, solved for the
+    altitude: H = T0 / L (1 - (p / p0) ** (R L / g0)), z = r H / (r - H)). Not range-checked: a
+    pressure above sea level's gives a negative altitude."""
+    p = np.asarray(pressure_pa, dtype=float)
+    exponent = K.AIR_GAS_CONSTANT * K.LAPSE_RATE / K.STANDARD_GRAVITY
+    h = K.STANDARD_TEMPERATURE / K.LAPSE_RATE * (1.0 - (p / K.STANDARD_PRESSURE) ** exponent)
+    return K.EARTH_RADIUS * h / (K.EARTH_RADIUS - h)
+
+
 @dataclass(frozen=True)
 class Room:
     """The air around the instrument.

@@ -54,6 +54,14 @@ def _profile(instrument: Instrument, profile):
     return thermal.design_profile(instrument) if profile is None else profile
 
 
+def _deviations_of(instrument: Instrument, frequencies_hz) -> np.ndarray:
+    """:func:`deviations` from the notes' frequencies [Hz] (NaN -> +1200 cent)."""
+    a4 = instrument.design.a4_hz
+    target = np.array([equal_temperament_hz(n.name, a4) for n in instrument.notes])
+    dev = cents(np.asarray(frequencies_hz, dtype=float), target)
+    return np.where(np.isfinite(dev), dev, 1200.0)
+
+
 def deviations(instrument: Instrument, profile: BoreProfile | None = None, **kwargs) -> np.ndarray:
     """Deviation [cent] of every named note from equal temperament at the design A4.
 
@@ -133,7 +141,8 @@ def _move(instrument: Instrument, name, position_m=None, diameter_m=None):
 def tune_layout(instrument: Instrument, profile: BoreProfile | None = None, holes=None,
                 vary_diameters=True, diameter_bounds_m=None, position_bounds_m=None, length_change_at_m=None,
                 length_change_bounds_m=(-0.05, 0.05),
-                min_gap_m=2e-3, diameter_weight=0.02, max_nfev=60, verbose=0) -> LayoutResult:
+                min_gap_m=2e-3, diameter_weight=0.02, max_nfev=60, verbose=0, progress=None, ftol=1e-8,
+                xtol=1e-8, batch_jacobian=False) -> LayoutResult:
     """Tune hole positions and diameters (and the bore length) to equal temperament.
 
     Parameters
@@ -160,6 +169,14 @@ def tune_layout(instrument: Instrument, profile: BoreProfile | None = None, hole
         cent per 1 % change: keeps the problem well posed when notes underdetermine sizes.
     max_nfev : int
         Limit on least-squares iterations.
+    ftol, xtol : float
+        Relative tolerances of ``scipy.optimize.least_squares`` on the cost and the variables.
+    progress : callable, optional
+        Called with the number of layouts evaluated (1 by default) after each evaluation.
+    batch_jacobian : bool
+        Compute the finite-difference Jacobian with every perturbed layout searched in one batch
+        (:func:`drift.pitch.state_frequencies`; the same differences, about a quarter faster)
+        instead of one layout at a time.
 
     Returns
     -------
@@ -220,10 +237,7 @@ def tune_layout(instrument: Instrument, profile: BoreProfile | None = None, hole
             ins = ins.with_length_change(length_change_at_m, delta)
         return ins
 
-    def residuals(x):
-        count[0] += 1
-        ins = build(x)
-        dev = deviations(ins, profile)
+    def residuals_of(ins, dev):
         reg = [diameter_weight * 100.0 * (h.diameter_m / d0[h.name] - 1.0)
                for h in ins.holes if h.name in d0] if vary_diameters else []
         ordered = sorted(ins.holes, key=lambda h: h.position_m)
@@ -231,8 +245,36 @@ def tune_layout(instrument: Instrument, profile: BoreProfile | None = None, hole
                 for a, b in zip(ordered[:-1], ordered[1:])]
         return np.concatenate([dev, reg, gaps])
 
-    sol = least_squares(residuals, x0, bounds=(lb, ub), method="trf", diff_step=1e-5,
-                        x_scale=1.0, max_nfev=max_nfev, verbose=verbose)
+    last = {}            # the last residuals computed, and where
+    diff_step = 1e-5     # relative finite-difference step
+
+    def residuals(x):
+        count[0] += 1
+        ins = build(x)
+        dev = deviations(ins, profile)
+        if progress is not None:
+            progress()
+        last.update(x=np.array(x), r=residuals_of(ins, dev))
+        return last["r"]
+
+    def batched_jacobian(x):
+        # scipy's two-point differences (step diff_step * max(1, |x|), turned back at an upper
+        # bound), every perturbed layout searched in one batch
+        f0 = last["r"] if "x" in last and np.array_equal(last["x"], x) else residuals(x)
+        steps = diff_step * np.maximum(1.0, np.abs(x))
+        steps = np.where(x + steps > np.array(ub), -steps, steps)
+        trials = [build(x + np.eye(len(x))[i] * steps[i]) for i in range(len(x))]
+        found = pitch.state_frequencies(trials, [profile] * len(trials))
+        count[0] += len(trials)
+        if progress is not None:
+            progress(len(trials))
+        columns = [(residuals_of(ins, _deviations_of(ins, f)) - f0) / h
+                   for ins, f, h in zip(trials, found, steps)]
+        return np.array(columns).T
+
+    sol = least_squares(residuals, x0, bounds=(lb, ub), method="trf", diff_step=diff_step,
+                        jac=batched_jacobian if batch_jacobian else "2-point",
+                        x_scale=1.0, max_nfev=max_nfev, verbose=verbose, ftol=ftol, xtol=xtol)
     tuned = build(sol.x)
     dev = deviations(tuned, profile)
     return LayoutResult(tuned, dev, bool(sol.success), str(sol.message), count[0])

@@ -82,6 +82,15 @@ def test_iso_2533_pressures(outside):
                   rel=1e-6, unit="Pa")
 
 
+def test_altitude_from_pressure_iso_2533(outside):
+    """The same ISO 2533:1975 table values read backwards (89 876 Pa at 1000 m, 79 501 Pa at
+    2000 m, from memory; 2 Pa is about 0.2 m there), and sea level at 101 325 Pa."""
+    outside.check(climate.altitude_from_pressure([89876.0, 79501.0]), [1000.0, 2000.0], quantity="altitude "
+                  "from the standard-atmosphere pressure", source="ISO 2533:1975 table values (from memory)", abs=0.3,
+                  unit="m")
+    assert float(climate.altitude_from_pressure(101325.0)) == pytest.approx(0.0, abs=1e-6)
+
+
 def test_altitude_range():
     with pytest.raises(OutOfRangeError, match="altitude"):
         climate.pressure_from_altitude(9000.0)

@@ -20,8 +20,8 @@ LAYERS = {
     "segments": ["segments"],
     "thermal": ["bore_state", "thermal"],
     "pitch": ["pitch"],
-    "jobs": ["advice", "layout", "chart", "warmup", "fit"],
-    "edge": ["render", "plot", "cli", "__main__", "__init__"],
+    "jobs": ["advice", "layout", "chart", "design", "warmup", "fit"],
+    "edge": ["render", "render_design", "plot", "cli", "__main__", "__init__"],
 }
 ORDER = [m for modules in LAYERS.values() for m in modules]
 LAYER_OF = {m: layer for layer, modules in LAYERS.items() for m in modules}
