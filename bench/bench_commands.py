@@ -25,6 +25,8 @@ COMMANDS = [
     ["chart"],
     ["warmup"],
     ["warmup", "--plan", "play:60", "--step", "10"],
+    ["advise", "side-blown-flute", "--climate", "hillside-evening"],
+    ["advise", "side-blown-flute", "cylindrical-reed", "conical-reed", "--climate", "hillside-evening"],
 ]
 
 

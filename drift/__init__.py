@@ -7,16 +7,17 @@ balance of the played bore and the resonances of the actual bore, and so the pit
 The layers, each a module answering one physical question, from the bottom up:
 
 - base: :mod:`drift.errors`, :mod:`drift.constants`, :mod:`drift.files`
-- data: :mod:`drift.scale`, :mod:`drift.materials`, :mod:`drift.climate`, :mod:`drift.instrument`
+- data: :mod:`drift.scale`, :mod:`drift.materials`, :mod:`drift.climate`, :mod:`drift.instrument`,
+  :mod:`drift.ensemble`
 - physics: :mod:`drift.gas_table`, :mod:`drift.air`, :mod:`drift.heat_transfer`, :mod:`drift.acoustics`
 - :mod:`drift.segments` (the bore cut into acoustic and wall segments)
-- :mod:`drift.bore_state`, :mod:`drift.thermal` (the air and wall along the bore; the heat
+- :mod:`drift.bore_state`, :mod:`drift.heat_balance`, :mod:`drift.thermal` (the air and wall along the bore; the heat
   balance of the played bore that gives them)
 - :mod:`drift.pitch` (playing frequencies for a bore state)
 - jobs: :mod:`drift.chart`, :mod:`drift.design`, :mod:`drift.warmup`, :mod:`drift.fit`,
-  :mod:`drift.layout`, :mod:`drift.advice`
-- edge: :mod:`drift.render`, :mod:`drift.render_design`, :mod:`drift.plot`, :mod:`drift.cli`, and
-  this package's public API.
+  :mod:`drift.gig`, :mod:`drift.layout`, :mod:`drift.advice`
+- edge: :mod:`drift.render`, :mod:`drift.render_design`, :mod:`drift.sheet`, :mod:`drift.plot`,
+  :mod:`drift.cli`, and this package's public API.
 
 The public API below is imported on first use, so ``import drift`` is cheap and never loads
 CoolProp (which is loaded only when air properties are first computed).
@@ -68,6 +69,10 @@ _API = {
     "TunerLog": "fit",
     "fit_player": "fit",
     "PlayerFit": "fit",
+    "plan_gig": "gig",
+    "GigPlan": "gig",
+    "Weather": "climate",
+    "load_ensemble": "ensemble",
     "DriftError": "errors",
     "InputFileError": "errors",
     "OutOfRangeError": "errors",

@@ -337,8 +337,11 @@ def _next_change(points, walls, no_root):
     return guess, None
 
 
-def _summary(instrument: Instrument, climate: Climate, drift, solved, reference_hz, names,
-             tolerance) -> ClimateSummary:
+def summarise(instrument: Instrument, label: str, drift, solved, reference_hz, names,
+              tolerance) -> ClimateSummary:
+    """The :class:`ClimateSummary` of one bore state labelled ``label``: the notes' ``drift``
+    [cent], the joint change ``solved`` (an item of :func:`joint_changes`, or None without a
+    joint), the notes still beyond ``tolerance`` [cent] after it."""
     warning = None
     adjust_m = None
     adjusted = drift
@@ -354,7 +357,7 @@ def _summary(instrument: Instrument, climate: Climate, drift, solved, reference_
             warning = (f"the needed change of {adjust_m * 1e3:+.1f} mm exceeds what the joint allows "
                        f"({t.min_change_m * 1e3:+.1f} to {t.max_change_m * 1e3:+.1f} mm)")
     return ClimateSummary(
-        climate=climate.name,
+        climate=label,
         mean_drift_cents=float(np.nanmean(drift)),
         min_drift_cents=float(np.nanmin(drift)),
         max_drift_cents=float(np.nanmax(drift)),
@@ -440,7 +443,7 @@ def drift_chart(instrument: Instrument, climates: list[Climate], reference: Clim
         offset = cents(f, equal)
         for note, value, d, o in zip(instrument.notes, f, drift, offset):
             rows.append(DriftRow(note.name, note.register, c.name, float(value), float(d), float(o)))
-        summary.append(_summary(instrument, c, drift, fix, reference_hz, names, tolerance_cents))
+        summary.append(summarise(instrument, c.name, drift, fix, reference_hz, names, tolerance_cents))
     return Chart(instrument.name, a4_hz, reference.name, tolerance_cents, [c.name for c in climates],
                  names, rows, summary, tuple(float(f) for f in reference_hz),
                  tuple(float(o) for o in cents(reference_hz, equal)),

@@ -13,7 +13,7 @@ import sys
 import click
 
 from drift import __version__
-from drift.constants import TOLERANCE_CENTS
+from drift.constants import GIG_PLAN, TOLERANCE_CENTS
 
 FORMAT_OPTION = click.option(
     "--format",
@@ -282,7 +282,8 @@ def chart_command(instrument, climate_names, reference_name, a4_hz, show_offsets
         result = chart.drift_chart(inst, climates, reference, a4_hz, tolerance_cents, progress)
     finally:
         progress.close()
-    cautions = [c for where in climates for c in advice.cautions(inst.material, where)]
+    absorptance = inst.wall_material.solar_absorptance
+    cautions = [c for where in climates for c in advice.cautions(inst.material, where, absorptance)]
     doc = render.chart_document(result, cautions)
     render.emit(doc, fmt, functools.partial(render.chart_table, offsets=show_offsets), render.chart_csv, output)
     warn_on_stderr(doc, fmt)
@@ -302,18 +303,25 @@ def chart_command(instrument, climate_names, reference_name, a4_hz, show_offsets
               help="Time between rows [s], 1 to 3600.")
 @click.option("--reference", "reference_name", default=None, metavar="CLIMATE",
               help="Condition the drift is measured from. Default: the instrument's [design] condition.")
+@click.option("--all-notes", "all_notes", is_flag=True,
+              help="Show every note in the table, not only the lowest, middle, highest and tuning note.")
 @FORMAT_OPTION
 @OUTPUT_OPTION
 @PLOT_OPTION
 @reports_errors
-def warmup_command(instrument, climate_name, plan_text, step_s, reference_name, fmt, output, plot_path):
+def warmup_command(instrument, climate_name, plan_text, step_s, reference_name, all_notes, fmt, output,
+                   plot_path):
     """Pitch of every note over a play/rest plan, and the time it takes to settle.
 
     INSTRUMENT is a bundled instrument name or an instrument file. The bore warms while it is
-    played and cools during rests; each row gives the drift in cents from the reference, and the
-    report ends with the time each play phase takes to come within 2 cents of the steady state.
+    played and cools during rests; each row gives the drift in cents from the reference. During
+    a rest a row gives where the notes would sound if playing resumed then (the wall as it has
+    cooled, the bore refilled with breath). `air in` and `air out` are the air temperature [°C]
+    where the breath enters the bore and at its open end. The report ends with the time each
+    play phase takes to come within 2 cents of the steady state, when to tune and how far to
+    move the joint then, and the care cautions of the climate.
     """
-    from drift import climate, files, render, thermal, warmup
+    from drift import advice, climate, files, render, thermal, warmup
     from drift.constants import ZERO_CELSIUS
     from drift.instrument import DEFAULT_INSTRUMENT, load_instrument
 
@@ -337,8 +345,6 @@ def warmup_command(instrument, climate_name, plan_text, step_s, reference_name, 
     else:
         reference = thermal.design_profile(inst)
         reference_label = "design condition" + (" (played)" if design.playing else " (at rest)")
-    # Profiles to evaluate: the samples, the reference, the steady state, and about 20 for the
-    # settle-time search.
     # Bore states searched: the reference and the steady state, about 20 knots per phase, and
     # about 32 for the settle time from cold (an estimate; the bar stops at its end).
     progress = LazyProgress(2 + 20 * len(plan) + 32, "computing")
@@ -347,8 +353,10 @@ def warmup_command(instrument, climate_name, plan_text, step_s, reference_name, 
                                         names=(climate_label, reference_label))
     finally:
         progress.close()
-    doc = render.warmup_document(result)
-    render.emit(doc, fmt, render.warmup_table, render.warmup_csv, output)
+    cautions = (advice.cautions(inst.material, where, inst.wall_material.solar_absorptance)
+                if climate_name else [])
+    doc = render.warmup_document(result, cautions)
+    render.emit(doc, fmt, functools.partial(render.warmup_table, all_notes=all_notes), render.warmup_csv, output)
     warn_on_stderr(doc, fmt)
     draw("warmup", doc, plot_path)
 
@@ -509,6 +517,65 @@ def retune_command(instrument, room_temp_c, rh_pct, a4_hz, at_rest, output, fmt)
     doc = render_design.retune_document(result, output)
     render.write_text(render_design.retuned_toml(doc, result.instrument, inst.source), output)
     render.emit(doc, fmt, render_design.retune_table, render_design.retune_csv)
+
+
+@main.command("advise")
+@click.argument("instruments", nargs=-1, metavar="[INSTRUMENT]...")
+@click.option("--ensemble", "ensemble_file", type=click.Path(dir_okay=False), default=None, metavar="FILE",
+              help="An ensemble file: the players, each with an instrument and perhaps a plan of their "
+                   "own (docs/formats.md); with INSTRUMENT too, those join it.")
+@click.option("--climate", "climate_name", required=True, metavar="CLIMATE",
+              help="The evening: bundled climate name or climate file, its later conditions "
+                   "([[change]]), sun and wind included.")
+@click.option("--plan", "plan_text", default=None, metavar="PLAN",
+              help="Phases in minutes from the start, beginning with play (the warm-up); every play "
+                   f"after a rest is a set. Default: the ensemble file's plan, else {GIG_PLAN}.")
+@click.option("--a4", "a4_hz", type=FiniteRange(380.0, 480.0), default=None,
+              help="The evening's A4 [Hz], 380 to 480 (default 440): each instrument's design "
+                   "tuning is moved to it.")
+@click.option("--tolerance", "tolerance_cents", type=FiniteRange(0.0, 100.0, min_open=True),
+              default=TOLERANCE_CENTS, show_default=True,
+              help="In-tune threshold [cents]; a break that moves a first note further calls for retuning.")
+@click.option("--format", "fmt", type=click.Choice(["text", "json"]), default="text", show_default=True,
+              help="A sheet of short lines (60 columns) or JSON.")
+@OUTPUT_OPTION
+@reports_errors
+def advise_command(instruments, ensemble_file, climate_name, plan_text, a4_hz, tolerance_cents, fmt, output):
+    """What to tell the players through an evening: one instrument or an ensemble.
+
+    INSTRUMENT is a bundled instrument name or an instrument file; repeat it for an ensemble, or
+    give an ensemble file.
+    At the start, after the warm-up and at the start of each set: each instrument's mean drift,
+    the joint setting that centres it, how far it sits from the ensemble; then who tunes to
+    whom, when to retune, and the care cautions of the evening's extremes.
+    """
+    from drift import climate, files, gig, sheet
+    from drift.ensemble import load_ensemble
+    from drift.errors import DriftError
+    from drift.instrument import load_instrument
+    from drift.render import write_text, to_json
+
+    if not instruments and ensemble_file is None:
+        raise click.UsageError("give one or more INSTRUMENT, or --ensemble FILE")
+    files.check_outputs([output], [*instruments, ensemble_file, climate_name])
+    group = load_ensemble(ensemble_file) if ensemble_file else None
+    try:
+        if plan_text:
+            plan = climate.parse_plan(plan_text)
+        else:
+            plan = group.plan if group and group.plan else climate.parse_plan(GIG_PLAN)
+        gig.plan_moments(plan)
+    except DriftError as error:
+        raise click.BadParameter(str(error), param_hint="--plan") from None
+    ensemble = [*(group.members if group else ()), *(load_instrument(name) for name in instruments)]
+    evening = climate.load_climate(climate_name)
+    progress = LazyProgress(len(ensemble), "computing")
+    try:
+        result = gig.plan_gig(ensemble, evening, plan, a4_hz, tolerance_cents, progress)
+    finally:
+        progress.close()
+    doc = sheet.gig_document(result)
+    write_text(to_json(doc) if fmt == "json" else sheet.gig_sheet(doc), output)
 
 
 @main.command("resonances")

@@ -13,9 +13,10 @@ ISO 2533:1975. Standard Atmosphere.
 
 from __future__ import annotations
 
+import bisect
 import dataclasses
 import math
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, fields
 from pathlib import Path
 from typing import Sequence
 
@@ -26,8 +27,11 @@ from drift.constants import DEFAULT_CO2_FRACTION, LIMITS, STANDARD_PRESSURE, ZER
 from drift.errors import InputFileError, OutOfRangeError, check_range
 from drift.files import Table, bundled_files, bundled_folder, load_named, read_toml
 
-TOP_KEYS = ("name", "description", "air", "player")
-AIR_KEYS = ("temperature_c", "relative_humidity_pct", "pressure_kpa", "altitude_m", "co2_ppm")
+TOP_KEYS = ("name", "description", "air", "player", "change")
+AIR_KEYS = ("temperature_c", "relative_humidity_pct", "pressure_kpa", "altitude_m", "co2_ppm", "sun_w_m2",
+            "wind_m_s")
+#: The keys of a later condition (``[[change]]``); each one absent keeps the value before it.
+CHANGE_KEYS = ("minute", "temperature_c", "relative_humidity_pct", "pressure_kpa", "sun_w_m2", "wind_m_s")
 PLAYER_KEYS = ("playing", "minutes_played", "breath_temperature_c", "breath_co2_pct", "breath_o2_pct",
                "player_file")
 #: Keys of a player file (``drift fit --write-player``); its ``[fit]`` table records the fit.
@@ -70,22 +74,78 @@ def altitude_from_pressure(pressure_pa):
 
 @dataclass(frozen=True)
 class Room:
-    """The air around the instrument.
+    """The air around the instrument, and outdoors the sun and wind on it.
 
     Attributes: temperature_k [K], pressure_pa [Pa], relative_humidity [0-1],
-    co2_fraction [mol/mol, of the dry air].
+    co2_fraction [mol/mol, of the dry air], sun_w_m2 (sunshine on the instrument, measured on a
+    surface facing the sun [W/m^2]; 0 in the shade or indoors), wind_m_s (wind speed [m/s]; 0 in
+    still air).
     """
 
     temperature_k: float
     pressure_pa: float = K.STANDARD_PRESSURE
     relative_humidity: float = 0.0
     co2_fraction: float = K.DEFAULT_CO2_FRACTION
+    sun_w_m2: float = 0.0
+    wind_m_s: float = 0.0
 
     def __post_init__(self):
         check_range("temperature_c", self.temperature_k, offset=-K.ZERO_CELSIUS)
         check_range("pressure_kpa", self.pressure_pa, scale=1e-3)
         check_range("relative_humidity_pct", self.relative_humidity, scale=100.0)
         check_range("co2_ppm", self.co2_fraction, scale=1e6)
+        check_range("sun_w_m2", self.sun_w_m2)
+        check_range("wind_m_s", self.wind_m_s)
+
+    @property
+    def temperature_c(self) -> float:
+        return self.temperature_k - ZERO_CELSIUS
+
+
+@dataclass(frozen=True)
+class Weather:
+    """Conditions that change in time: the room at given times, linear in between.
+
+    Attributes
+    ----------
+    times_s : tuple of float
+        Ascending times [s] from the start of the plan, the first 0.
+    rooms : tuple of Room
+        The room at each time. Between two times every quantity (temperature, pressure, humidity,
+        CO2, sun, wind) is interpolated linearly in time; after the last time it is held.
+    """
+
+    times_s: tuple[float, ...]
+    rooms: tuple[Room, ...]
+
+    def __post_init__(self):
+        t = self.times_s
+        if len(t) != len(self.rooms) or not t or t[0] != 0.0 or any(b <= a for a, b in zip(t[:-1], t[1:])):
+            raise OutOfRangeError("weather times must start at 0 and increase, one room per time")
+
+    @classmethod
+    def steady(cls, room: Room) -> "Weather":
+        """The same room all the time."""
+        return cls((0.0,), (room,))
+
+    def bracket(self, time_s: float) -> tuple[int, float]:
+        """(i, w): the room at ``time_s`` [s] is rooms[i] + w (rooms[i + 1] - rooms[i]), 0 <= w < 1
+        (w = 0 before the first and after the last time)."""
+        t = self.times_s
+        if time_s <= t[0] or len(t) == 1:
+            return 0, 0.0
+        if time_s >= t[-1]:
+            return len(t) - 1, 0.0
+        i = bisect.bisect_right(t, time_s) - 1
+        return i, (time_s - t[i]) / (t[i + 1] - t[i])
+
+    def room_at(self, time_s: float) -> Room:
+        """The room at a time [s]: linear between the given times, held after the last."""
+        i, w = self.bracket(float(time_s))
+        if w == 0.0:
+            return self.rooms[i]
+        a, b = self.rooms[i], self.rooms[i + 1]
+        return Room(*(getattr(a, f.name) + w * (getattr(b, f.name) - getattr(a, f.name)) for f in fields(Room)))
 
 
 @dataclass(frozen=True)
@@ -263,17 +323,26 @@ class Player:
 
 @dataclass(frozen=True)
 class Climate:
-    """A named condition: the room air and the player."""
+    """A named condition: the room air and the player, and how the air changes over a plan.
+
+    ``room`` is the condition at the start (minute 0); ``weather``, when the file lists later
+    conditions (``[[change]]``), the room in time (:class:`Weather`), else None.
+    """
 
     name: str
     room: Room
     player: Player = field(default_factory=Player)
     description: str = ""
     source: str = ""
+    weather: Weather | None = None
 
     @property
     def temperature_c(self) -> float:
         return self.room.temperature_k - ZERO_CELSIUS
+
+    def schedule(self) -> Weather:
+        """The room in time: the ``weather``, or the one room held."""
+        return self.weather or Weather.steady(self.room)
 
 
 def _limits(name: str) -> dict:
@@ -298,7 +367,10 @@ def parse_climate(data: dict, path: str | Path) -> Climate:
     elif air_table.has("altitude_m"):
         pressure = float(pressure_from_altitude(air_table.number("altitude_m", **_limits("altitude_m"))))
     co2_ppm = air_table.number("co2_ppm", DEFAULT_CO2_FRACTION * 1e6, **_limits("co2_ppm"))
-    room = Room(temperature_c + ZERO_CELSIUS, pressure, rh_pct / 100.0, co2_ppm * 1e-6)
+    sun = air_table.number("sun_w_m2", 0.0, **_limits("sun_w_m2"))
+    wind = air_table.number("wind_m_s", 0.0, **_limits("wind_m_s"))
+    room = Room(temperature_c + ZERO_CELSIUS, pressure, rh_pct / 100.0, co2_ppm * 1e-6, sun, wind)
+    weather = _parse_changes(top, room)
 
     player_table = top.table("player", PLAYER_KEYS)
     default = DEFAULT_BREATH
@@ -325,7 +397,32 @@ def parse_climate(data: dict, path: str | Path) -> Climate:
         flow_m3_s=fitted.get("flow_m3_s"),
         heat_transfer_factor=fitted.get("heat_transfer_factor", 1.0),
     )
-    return Climate(name, room, player, description, str(path))
+    return Climate(name, room, player, description, str(path), weather)
+
+
+def _parse_changes(top: Table, room: Room) -> Weather | None:
+    """The ``[[change]]`` list: later conditions by minute, each key absent keeping its value."""
+    changes = top.tables("change", CHANGE_KEYS)
+    if not changes:
+        return None
+    times, rooms = [0.0], [room]
+    for change in changes:
+        minute = change.number("minute", required=True, low=0.0, high=K.LONGEST_PLAN_S / 60, unit="min")
+        if minute * 60.0 <= times[-1]:
+            change.fail("minute", f"= {minute:g} must be later than the condition before it "
+                                  f"({times[-1] / 60.0:g} min)")
+        last = rooms[-1]
+        values = {}
+        for key, attribute, scale, offset in (("temperature_c", "temperature_k", 1.0, ZERO_CELSIUS),
+                                              ("relative_humidity_pct", "relative_humidity", 0.01, 0.0),
+                                              ("pressure_kpa", "pressure_pa", 1e3, 0.0),
+                                              ("sun_w_m2", "sun_w_m2", 1.0, 0.0),
+                                              ("wind_m_s", "wind_m_s", 1.0, 0.0)):
+            value = change.number(key, None, **_limits(key))
+            values[attribute] = getattr(last, attribute) if value is None else value * scale + offset
+        times.append(minute * 60.0)
+        rooms.append(dataclasses.replace(last, **values))
+    return Weather(tuple(times), tuple(rooms))
 
 
 def load_player_file(path: str | Path) -> dict:

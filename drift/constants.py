@@ -79,6 +79,9 @@ NAME_WARNING_CENTS = 50.0
 SEGMENT_LENGTH_M = 0.02
 #: Longest play/rest plan, playing time or settle-time search [s] (10 h).
 LONGEST_PLAN_S = 600.0 * 60.0
+#: The evening's plan when ``drift advise`` is given none [min]: a 10-minute warm-up, a wait, two
+#: 45-minute sets with a 20-minute break (common practice for a concert in two halves).
+GIG_PLAN = "play:10,rest:10,play:45,rest:20,play:45"
 
 #: Validity range of the air model and of the conditions a user may give, in boundary units:
 #: name -> (low, high, unit label).
@@ -91,6 +94,12 @@ LIMITS = {
     "altitude_m": (-400.0, 5000.0, "m"),
     "breath_co2_pct": (0.0, 10.0, "%"),
     "breath_o2_pct": (5.0, 21.0, "%"),
+    # Sunshine on the instrument, normal to the beam: at most about 1100 W/m2 reaches the ground
+    # at sea level (Duffie & Beckman 2013, Solar Engineering of Thermal Processes, Sec. 2.8;
+    # from memory), below the solar constant 1361 W/m2 (Kopp & Lean 2011, Geophys. Res. Lett.
+    # 38, L01706).
+    "sun_w_m2": (0.0, 1200.0, "W/m²"),
+    "wind_m_s": (0.0, 20.0, "m/s"),
 }
 
 

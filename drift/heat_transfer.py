@@ -241,3 +241,33 @@ def outer_coefficient(surface_k, room_k, diameter_m, room_gas, air_speed_m_s, em
         nu = nu_natural
     h_conv = float(room_gas.conductivity) * nu / diameter_m
     return h_conv + radiative_coefficient(surface_k, room_k, emissivity)
+
+
+def absorbed_sunshine(irradiance_w_m2, absorptance, outer_area_m2):
+    """Sunshine absorbed by the outside of a long tube lit broadside [W].
+
+    The beam of irradiance G [W/m^2] (measured on a surface facing the sun) falls on the tube's
+    projected area D L, which is its outer area pi D L over pi; a share alpha (the surface's solar
+    absorptance) of it is absorbed: Q = alpha G A_outer / pi (Incropera et al. 2007, Sec. 12.5:
+    absorbed irradiation G_abs = alpha G, Eq. 12.42; from memory). The tube is taken square to the
+    beam, the most it can catch; diffuse sky light and light reflected from the ground are left out.
+
+    Parameters
+    ----------
+    irradiance_w_m2 : array_like
+        Sunshine on a surface facing the sun [W/m^2].
+    absorptance : array_like
+        Solar absorptance of the outer surface [-].
+    outer_area_m2 : array_like
+        Outer surface area [m^2].
+    """
+    g = np.asarray(irradiance_w_m2, dtype=float)
+    return np.asarray(absorptance, dtype=float) * g * np.asarray(outer_area_m2, dtype=float) / np.pi
+
+
+def relative_air_speed(own_m_s, wind_m_s):
+    """Root-mean-square speed [m/s] of the air across an instrument that moves at ``own_m_s`` in a
+    wind of ``wind_m_s``, the two in independent directions: sqrt(v^2 + w^2) (the mean square of
+    the difference of two independent velocities, one of them of random direction, is the sum of
+    their mean squares). An estimate for the forced convection outside, not a correlation."""
+    return np.hypot(np.asarray(own_m_s, dtype=float), np.asarray(wind_m_s, dtype=float))

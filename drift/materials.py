@@ -1,4 +1,5 @@
-"""Wall materials of wind instruments: expansion, heat capacity, conductivity, emissivity.
+"""Wall materials of wind instruments: expansion, heat capacity, conductivity, emissivity, solar
+absorptance.
 
 The values live in the package table ``drift/data/materials.toml``, each with its source there
 (handbook tables, marked "from memory" where recalled); this module reads and checks it.
@@ -24,6 +25,7 @@ _MATERIAL_KEYS = {
     "conductivity_w_m_k": float,
     "conductivity_across_grain_w_m_k": float,
     "emissivity": float,
+    "solar_absorptance": float,
     "wall_mm": float,
     "sources": str,
 }
@@ -33,6 +35,7 @@ _MATERIAL_REQUIRED = (
     "specific_heat_j_kg_k",
     "conductivity_w_m_k",
     "emissivity",
+    "solar_absorptance",
     "wall_mm",
 )
 
@@ -61,6 +64,8 @@ class Material:
         Thermal conductivity through the wall [W/(m K)] (across the grain for wood).
     emissivity : float
         Total hemispherical emissivity of the outer surface [-].
+    solar_absorptance : float
+        Share of the sunshine falling on the outer surface that it absorbs [-].
     wall_thickness : float
         Typical wall thickness [m], used when an instrument gives none.
     sources : str
@@ -75,6 +80,7 @@ class Material:
     conductivity: float
     conductivity_across: float
     emissivity: float
+    solar_absorptance: float
     wall_thickness: float
     sources: str
 
@@ -105,8 +111,8 @@ def _material_from_table(name: str, table: dict) -> Material:
     missing = [k for k in _MATERIAL_REQUIRED if k not in table]
     if missing:
         raise InputFileError(f"materials.toml: [{name}] is missing key {missing[0]!r}")
-    v = {k: _positive(name, k, table[k]) for k in _MATERIAL_REQUIRED if k != "emissivity"}
-    emissivity = _positive(name, "emissivity", table["emissivity"], upper=1.0)
+    fractions = ("emissivity", "solar_absorptance")
+    v = {k: _positive(name, k, table[k], upper=1.0 if k in fractions else None) for k in _MATERIAL_REQUIRED}
     across_e = table.get("expansion_across_grain_per_k", v["expansion_per_k"])
     across_k = table.get("conductivity_across_grain_w_m_k", v["conductivity_w_m_k"])
     return Material(
@@ -118,7 +124,8 @@ def _material_from_table(name: str, table: dict) -> Material:
         specific_heat=v["specific_heat_j_kg_k"],
         conductivity=v["conductivity_w_m_k"],
         conductivity_across=_positive(name, "conductivity_across_grain_w_m_k", across_k),
-        emissivity=emissivity,
+        emissivity=v["emissivity"],
+        solar_absorptance=v["solar_absorptance"],
         wall_thickness=v["wall_mm"] * 1e-3,
         sources=str(table.get("sources", "")),
     )

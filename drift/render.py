@@ -108,6 +108,9 @@ def climate_record(c) -> dict:
         "relative_humidity_pct": round(c.room.relative_humidity * 100, 3),
         "pressure_kpa": round(c.room.pressure_pa * 1e-3, 3),
         "co2_ppm": round(c.room.co2_fraction * 1e6, 1),
+        "sun_w_m2": round(c.room.sun_w_m2, 3),
+        "wind_m_s": round(c.room.wind_m_s, 3),
+        "later_conditions": 0 if c.weather is None else len(c.weather.rooms) - 1,
         "playing": c.player.playing,
         "minutes_played": c.player.minutes_played,
         "description": c.description,
@@ -175,8 +178,9 @@ def resonances_document(found, warnings=()) -> dict:
             "name_warnings": name_warning_records(warnings)}
 
 
-def warmup_document(w) -> dict:
-    """A :class:`drift.warmup.Warmup` as the JSON document of ``drift warmup``."""
+def warmup_document(w, cautions=()) -> dict:
+    """A :class:`drift.warmup.Warmup` and the climate's care cautions
+    (:class:`drift.advice.Caution`) as the JSON document of ``drift warmup``."""
     rows, bore_rows = [], []
     for t, state, freqs, drift in zip(w.times_s, w.states, w.frequencies_hz, w.drift_cents):
         minute = round(float(t) / 60.0, 6)
@@ -208,6 +212,10 @@ def warmup_document(w) -> dict:
                                      else w.settle_from_cold_s / 60.0),
         "inlet_position_mm": round(w.inlet_position_m * 1e3, 3),
         "name_warnings": name_warning_records(w.name_warnings),
+        "tune_minute": None if w.tune_s is None else w.tune_s / 60.0,
+        "tune_adjust_mm": None if w.tune_adjust_m is None else w.tune_adjust_m * 1e3,
+        "cautions": [{"climate": c.climate, "topic": c.topic, "text": c.text} for c in cautions],
+        "care_note": advice.DEFER if cautions else None,
     }
 
 
@@ -401,12 +409,13 @@ def _warmup_grid(doc: dict):
     return minutes, states, drift, ends
 
 
-def warmup_table(doc: dict) -> str:
+def warmup_table(doc: dict, all_notes: bool = False) -> str:
     """The ``drift warmup`` document as a table: minutes as rows, the air temperature where the
-    breath enters and at the open end, and the drift [cents] of a handful of notes as columns; the
-    steady state and the settle times under it."""
+    breath enters and at the open end, and the drift [cents] of a handful of notes (``all_notes``:
+    of every note) as columns; the steady state, the settle times, when to tune and the care
+    cautions under it."""
     minutes, states, drift, ends = _warmup_grid(doc)
-    notes = doc["key_notes"]
+    notes = list(dict.fromkeys(r["note"] for r in doc["rows"])) if all_notes else doc["key_notes"]
     rows = []
     for m in minutes:
         first, last = ends.get(m, (math.nan, math.nan))
@@ -431,8 +440,20 @@ def warmup_table(doc: dict) -> str:
         else:
             text += (f"play phase {s['phase']} (from minute {s['start_minute']:g}): within "
                      f"{doc['tolerance_cents']:g} cents of the steady state after "
-                     f"{s['minutes_to_settle']:g} min (minute {s['settled_minute']:g})\n")
-    return text + "".join(line + "\n" for line in name_warning_lines(doc))
+                     f"{s['minutes_to_settle']:.1f} min (minute {s['settled_minute']:.1f})\n")
+    if doc.get("tune_minute") is not None:
+        joint = ("" if doc.get("tune_adjust_mm") is None else
+                 f", moving the joint {_signed(doc['tune_adjust_mm'])} mm (+ out, − in) to centre the notes")
+        text += textwrap.fill(f"tune after minute {doc['tune_minute']:.1f} (the mean drift then stays within "
+                              f"{doc['tolerance_cents']:g} cents of its steady value){joint}", TABLE_WIDTH,
+                              subsequent_indent="    ") + "\n"
+    text += "".join(line + "\n" for line in name_warning_lines(doc))
+    if doc.get("cautions"):
+        text += "Care:\n" + "".join(
+            textwrap.fill(f"{c['topic']}: {c['text']}", TABLE_WIDTH, initial_indent="  ",
+                          subsequent_indent="    ") + "\n" for c in doc["cautions"])
+        text += textwrap.fill(doc["care_note"], TABLE_WIDTH, initial_indent="  ", subsequent_indent="  ") + "\n"
+    return text
 
 
 def _cents(value) -> str:

@@ -8,6 +8,7 @@ tolerance of the steady state of playing.
 
 from __future__ import annotations
 
+import dataclasses
 from dataclasses import dataclass
 from typing import Sequence
 
@@ -34,7 +35,9 @@ class Warmup:
     times_s : ndarray (t,)
         Sample times [s].
     states : list of drift.thermal.ThermalState (t,)
-        The thermal state at each time (``phase`` says play or rest).
+        The thermal state at each time (``phase`` says play or rest). During a rest, the state of
+        the first note had playing resumed then (:meth:`drift.thermal.Trajectory.resumed`: the
+        wall as it has cooled, the bore refilled with breath); the pitch of that row is its pitch.
     frequencies_hz : ndarray (t, k)
         Playing frequency of each note at each time [Hz].
     reference_hz : ndarray (k,)
@@ -45,8 +48,9 @@ class Warmup:
         Frequency of each note in the steady state of playing in the same room [Hz].
     steady : drift.thermal.ThermalState
     settle : list of (phase index, start [s], settled [s] or None)
-        For each play phase: the first sample time from which every note stays within
-        ``tolerance_cents`` of its steady-state frequency until the phase ends.
+        For each play phase: the time from which every note stays within ``tolerance_cents`` of
+        its steady-state frequency until the phase ends (:func:`settle_time`, interpolated
+        between rows).
     tolerance_cents : float
     plan : tuple of Phase
     instrument, climate, reference : str
@@ -58,6 +62,12 @@ class Warmup:
         Centre of the segment where the breath enters the bore [m] (the embouchure for a jet).
     name_warnings : tuple of drift.chart.NameWarning
         The notes far from their names at the design condition (:func:`drift.chart.name_warnings`).
+    tune_s : float or None
+        When to tune [s]: the first time of the first play phase after which the notes' mean
+        drift stays within ``tolerance_cents`` of its steady value (None: not within the phase).
+    tune_adjust_m : float or None
+        The joint change [m] that centres the notes' mean at ``tune_s`` (> 0 out); None without
+        a joint or when no change centres it.
     """
 
     notes: tuple[str, ...]
@@ -77,6 +87,8 @@ class Warmup:
     settle_from_cold_s: float | None = None
     inlet_position_m: float = 0.0
     name_warnings: tuple = ()
+    tune_s: float | None = None
+    tune_adjust_m: float | None = None
 
     @property
     def steady_drift_cents(self) -> np.ndarray:
@@ -234,7 +246,10 @@ def phase_pitch(pitch_at, start_s: float, times_s, tolerance_cents: float = KNOT
 
 def plan_frequencies(instrument: Instrument, trajectory: thermal.Trajectory, times_s, progress=None) -> np.ndarray:
     """Frequencies [Hz] (t, notes) of every note at the ascending ``times_s`` [s] of a thermal
-    trajectory, phase by phase from a few full resonance searches (:func:`phase_pitch`)."""
+    trajectory, phase by phase from a few full resonance searches (:func:`phase_pitch`). During a
+    rest, the frequencies are those of the first note had playing resumed then
+    (:meth:`drift.thermal.Trajectory.resumed`: the wall as it has cooled, the bore refilled with
+    breath)."""
     times = np.asarray(times_s, dtype=float)
     freqs = np.empty((len(times), len(instrument.fingerings())))
     phase_of_row = np.array([trajectory.phase_of(t) for t in times])
@@ -244,6 +259,8 @@ def plan_frequencies(instrument: Instrument, trajectory: thermal.Trajectory, tim
             continue
 
         def pitch_at(ts, index=index):
+            if trajectory.plan[index].state == "rest":
+                return pitch.frequencies_hz(instrument, [trajectory.resumed(t).profile for t in ts])
             return pitch.frequencies_hz(instrument, [trajectory.state(t, index).profile for t in ts])
 
         freqs[rows] = phase_pitch(pitch_at, trajectory.starts_s[index], times[rows], progress=progress)
@@ -357,7 +374,10 @@ def warmup_timeline(instrument: Instrument, room: Room, plan: Sequence[Phase] | 
     plan = parse_plan(plan) if isinstance(plan, str) else tuple(plan)
     times = sample_times(plan, step_s)
     trajectory = thermal.instrument_trajectory(instrument, room, plan, breath, blowing)
-    states = trajectory.states(times)
+    phase_of_row = np.array([trajectory.phase_of(t) for t in times])
+    # During a rest, each row is the first note had playing resumed then.
+    states = [trajectory.state(t) if plan[i].state == "play" else
+              dataclasses.replace(trajectory.resumed(t), phase="rest") for t, i in zip(times, phase_of_row)]
     steady = thermal.instrument_steady_state(instrument, room, breath, blowing)
     at_design = reference is None
     reference = thermal.design_profile(instrument, breath) if reference is None else reference
@@ -368,7 +388,6 @@ def warmup_timeline(instrument: Instrument, room: Room, plan: Sequence[Phase] | 
     if progress is not None:
         progress(2)
     freqs = plan_frequencies(instrument, trajectory, times, progress)
-    phase_of_row = np.array([trajectory.phase_of(t) for t in times])
     drift = cents(freqs, ref[None, :])
     steady_cents = cents(freqs, steady_hz[None, :])
     settle = []
@@ -378,11 +397,33 @@ def warmup_timeline(instrument: Instrument, room: Room, plan: Sequence[Phase] | 
             t = settle_time(times[inside], steady_cents[inside], np.zeros(len(notes)), tolerance_cents)
             settle.append((index, trajectory.starts_s[index], t))
     from_cold = settle_from_cold(instrument, room, steady_hz, tolerance_cents, breath, blowing, progress)
+    tune_s, tune_adjust_m = _tune(instrument, trajectory, plan, times, phase_of_row, drift, steady_hz, ref,
+                                  tolerance_cents)
     wall = instrument_wall(instrument)
     inlet = wall.positions_m[int(np.argmax(wall.flow_fraction > 0.0))]
     far = chart.name_warnings(instrument, notes, ref if at_design and breath == DEFAULT_BREATH else None)
     return Warmup(labels, times, states, freqs, ref, drift, steady_hz, steady, settle, tolerance_cents,
-                  tuple(plan), instrument.name, names[0], names[1], from_cold, float(inlet), far)
+                  tuple(plan), instrument.name, names[0], names[1], from_cold, float(inlet), far, tune_s,
+                  tune_adjust_m)
+
+
+def _tune(instrument, trajectory, plan, times, phase_of_row, drift, steady_hz, reference_hz, tolerance):
+    """When to tune in the first play phase, and the joint change then: the first time [s] after
+    which the mean drift of the notes stays within ``tolerance`` of its steady value
+    (:func:`settle_time`, interpolated between rows), and the change [m] that centres the notes'
+    mean there (:func:`drift.chart.joint_changes`; None without a joint or a time)."""
+    if plan[0].state != "play":
+        return None, None
+    rows = phase_of_row == 0
+    steady_mean = float(np.nanmean(cents(steady_hz, reference_hz)))
+    mean = np.nanmean(drift[rows], axis=1)
+    t = settle_time(times[rows], mean[:, None], [steady_mean], tolerance)
+    if t is None or instrument.tuning is None:
+        return t, None
+    profile = trajectory.state(t, 0).profile
+    at = pitch.frequencies_hz(instrument, [profile])[0]
+    (solved,) = chart.joint_changes(instrument, [profile], reference_hz, [cents(at, reference_hz)])
+    return t, (None if isinstance(solved, OutOfRangeError) else solved[0])
 
 
 def settle_time(times_s, values, steady_values, tolerance) -> float | None:
@@ -402,13 +443,19 @@ def settle_time(times_s, values, steady_values, tolerance) -> float | None:
     Returns
     -------
     float or None
-        The first sample time after which no sample leaves the band; None if the last sample is
-        still outside it.
+        The time after which no sample leaves the band: where the largest distance from the
+        steady values minus the tolerance, g, crosses zero between the last sample outside the
+        band and the next, linear between them (t_a + g_a (t_b - t_a) / (g_a - g_b)); the first
+        time when every sample is inside; None if the last sample is still outside.
     """
     t = np.asarray(times_s, dtype=float)
     v = np.asarray(values, dtype=float).reshape(t.size, -1)
-    inside = np.all(np.abs(v - np.asarray(steady_values, dtype=float).reshape(1, -1)) <= tolerance, axis=1)
+    gap = np.max(np.abs(v - np.asarray(steady_values, dtype=float).reshape(1, -1)), axis=1) - tolerance
+    inside = gap <= 0.0
     if not inside.size or not inside[-1]:
         return None
     outside = np.flatnonzero(~inside)
-    return float(t[0] if outside.size == 0 else t[outside[-1] + 1])
+    if outside.size == 0:
+        return float(t[0])
+    a = outside[-1]
+    return float(t[a] + gap[a] * (t[a + 1] - t[a]) / (gap[a] - gap[a + 1]))

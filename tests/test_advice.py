@@ -1,7 +1,9 @@
 """Care cautions (common practice: the usual advice of makers and repairers, no published source)."""
 
+import pytest
+
 from drift import advice
-from drift.climate import Climate, Room
+from drift.climate import Climate, Room, Weather
 from drift.constants import ZERO_CELSIUS
 
 
@@ -40,3 +42,55 @@ def test_every_caution_names_its_climate_and_the_set_defers_to_the_maker():
     assert "maker's instructions" in advice.DEFER and "local rules" in advice.DEFER
     # an unknown or missing material gets the general cautions only
     assert [c.topic for c in advice.cautions(None, climate(-8, 50))] == ["cold", "freezing"]
+
+
+def changing(*points):
+    """A climate whose (minute, t_c, rh_pct, sun) points change over the evening."""
+    rooms = tuple(Room(t + ZERO_CELSIUS, 101325.0, rh / 100.0, sun_w_m2=sun) for _, t, rh, sun in points)
+    return Climate("evening", rooms[0], weather=Weather(tuple(m * 60.0 for m, *_ in points), rooms))
+
+
+# Each caution at its documented threshold (docs/guide.md, "Care cautions"; common practice):
+# (topic, material, the climate just across the threshold, just inside it).
+THRESHOLDS = [
+    ("cold", "tropical_hardwood", (9.5, 50, 0), (10.5, 50, 0)),
+    ("freezing", "yellow_brass", (-0.5, 50, 0), (0.5, 50, 0)),
+    ("heat", "abs", (30.5, 40, 0), (29.5, 40, 0)),
+    ("players", "abs", (27.0, 60, 0), (26.5, 60, 0)),
+    ("players", "abs", (28.0, 60, 0), (28.0, 59, 0)),
+    ("sun", "nickel_silver", (20.0, 50, 300), (20.0, 50, 290)),
+    ("damp", "abs", (20.0, 86, 0), (20.0, 85, 0)),
+    ("dry", "tropical_hardwood", (20.0, 29, 0), (20.0, 30, 0)),
+]
+
+
+@pytest.mark.parametrize("topic, material, across, inside", THRESHOLDS)
+def test_each_caution_appears_exactly_past_its_threshold(topic, material, across, inside):
+    def found(point):
+        # The extreme comes an hour into a mild evening: the caution follows the extreme.
+        evening = changing((0, 20.0, 50, 0), (60, *point))
+        return [c for c in advice.cautions(material, evening) if c.topic == topic]
+
+    assert found(across) and "at 60 min" in found(across)[0].when
+    assert not found(inside)
+
+
+@pytest.mark.parametrize("metal", advice.METALS)
+def test_wood_only_cautions_never_reach_metal(metal):
+    # Cold, sun and dry air crack wood; none of those lines for a metal instrument.
+    harsh = changing((0, 5.0, 20, 800), (60, 35.0, 10, 800))
+
+    def wood_lines(cautions):
+        return [c for c in cautions if c.topic in ("cold", "sun", "dry") and ("crack" in c.text)]
+
+    metal_cautions = advice.cautions(metal, harsh, 0.4)
+    assert {c.topic for c in metal_cautions} >= {"cold", "heat", "sun"}
+    assert wood_lines(metal_cautions) == []
+    assert [c.topic for c in wood_lines(advice.cautions("tropical_hardwood", harsh, 0.85))] == ["cold", "sun", "dry"]
+
+
+def test_extremes_of_an_evening():
+    e = advice.extremes(changing((0, 29.0, 60, 450), (80, 25.0, 72, 0), (150, 21.0, 82, 0)))
+    assert (e["hottest"].value, e["hottest"].time_s) == (29.0, 0.0)
+    assert (e["coldest"].value, e["coldest"].time_s) == (21.0, 9000.0)
+    assert e["sunniest"].value == 450.0 and e["dampest"].value == 82.0 and e["driest"].value == 60.0

@@ -479,3 +479,99 @@ def test_option_errors_are_one_line_and_refuse_nan(cli, args, words):
     result = cli(*args, code=None)
     assert_refused(result, *words)
     assert len(result.stderr.strip().splitlines()) == 1 and "Usage:" not in result.stderr
+
+
+# --------------------------------------------------------------------------------------------
+# drift advise
+# --------------------------------------------------------------------------------------------
+
+#: The JSON contract of `drift advise` (issue "The gig planner"): these keys at least.
+ADVISE_KEYS = {"instruments", "climate", "moments", "advice", "cautions"}
+MOMENT_KEYS = {"minute", "label", "instruments", "widest_gap_cents"}
+STANDING_KEYS = {"instrument", "mean_drift_cents", "adjust_mm", "joint_reachable", "from_ensemble_cents",
+                 "out_of_tolerance"}
+
+
+@pytest.fixture(scope="module")
+def advised(tmp_path_factory):
+    """`drift advise` of a small jointed pipe, twice (an ensemble of two: once from an ensemble
+    file, once as an argument), through the bundled summer evening, as JSON."""
+    from conftest import TWO_HOLE_PIPE, invoke, write_file
+
+    folder = tmp_path_factory.mktemp("advise")
+    path = write_file(folder, TWO_HOLE_PIPE, "pipe.toml")
+    band = write_file(folder, 'name = "duo"\nplan = "play:2,rest:2,play:2"\n[[member]]\ninstrument = "pipe.toml"\n',
+                      "duo.toml")
+    out = tmp_path_factory.mktemp("advise-out") / "gig.json"
+    invoke("advise", path, "--ensemble", band, "--climate", "hillside-evening", "--format", "json", "--output", out)
+    return path, json.loads(out.read_text(encoding="utf-8"))
+
+
+def test_advise_json_contract(advised):
+    _, doc = advised
+    assert ADVISE_KEYS <= set(doc)
+    assert doc["instruments"] == ["pipe 1", "pipe 2"] and doc["climate"] == "hillside-evening"
+    assert [m["label"] for m in doc["moments"]] == ["start", "after warm-up", "set 1", "end"]
+    assert [m["minute"] for m in doc["moments"]] == [0, 2, 4, 6]
+    for m in doc["moments"]:
+        assert MOMENT_KEYS <= set(m) and len(m["instruments"]) == 2
+        for s in m["instruments"]:
+            assert STANDING_KEYS <= set(s)
+            assert isinstance(s["joint_reachable"], bool) and isinstance(s["out_of_tolerance"], list)
+            assert s["adjust_mm"] is None or math.isfinite(s["adjust_mm"])
+    assert all(isinstance(a, str) and a for a in doc["advice"])
+    assert all(c.endswith("(common practice)") for c in doc["cautions"])
+    assert "maker's instructions" in doc["care_note"]
+
+
+def test_advise_sheet_reads_on_a_phone(advised):
+    from drift import sheet
+
+    _, doc = advised
+    text = sheet.gig_sheet(doc)
+    assert max(len(line) for line in text.splitlines()) <= 60
+    assert "AFTER WARM-UP, minute 2" in text and "CARE (common practice)" in text
+    assert "nan" not in text.lower()
+
+
+@pytest.mark.parametrize("args, words", [
+    (["advise", "--climate", "hillside-evening"], ["INSTRUMENT", "--ensemble"]),
+    (["advise", "--ensemble", "no-such-band.toml", "--climate", "hillside-evening"], ["no-such-band.toml"]),
+    (["advise", "side-blown-flute"], ["--climate"]),
+    (["advise", "side-blown-flute", "--climate", "nowhere"], ["nowhere"]),
+    (["advise", "side-blown-flute", "--climate", "hillside-evening", "--plan", "rest:5,play:5"],
+     ["--plan", "start with play"]),
+    (["advise", "side-blown-flute", "--climate", "hillside-evening", "--plan", "play:x"], ["--plan", "minutes"]),
+    (["advise", "side-blown-flute", "--climate", "hillside-evening", "--a4", "500"], ["--a4", "380"]),
+    (["advise", "side-blown-flute", "--climate", "hillside-evening", "--format", "csv"], ["--format", "text"]),
+    (["advise", "side-blowen-flute", "--climate", "hillside-evening"], ["side-blown-flute"]),
+])
+def test_advise_bad_input_exits_2(cli, args, words):
+    assert_refused(cli(*args, code=None), *words)
+
+
+def test_advise_bad_climate_change_names_file_and_key(cli, tmp_path):
+    bad = tmp_path / "evening.toml"
+    bad.write_text('name = "e"\n[air]\ntemperature_c = 25\n[[change]]\nminute = 20\n[[change]]\nminute = 10\n',
+                   encoding="utf-8")
+    target = tmp_path / "gig.txt"
+    target.write_text("keep me", encoding="utf-8")
+    result = cli("advise", "side-blown-flute", "--climate", bad, "--output", target, code=None)
+    assert_refused(result, "evening.toml", "[[change]] #2 minute")
+    assert target.read_text(encoding="utf-8") == "keep me"
+
+
+def test_warmup_carries_the_climates_cautions_and_every_note(cli, warmup_pipe, write_toml, bundled_warmups):
+    # The breath-warm room (35 °C, 100 % RH) crosses the heat, players' and damp thresholds
+    # (docs/guide.md, "Care cautions"; common practice).
+    room = write_toml(BREATH_WARM_ROOM, "room.toml")
+    doc = json.loads(cli("warmup", warmup_pipe, "--plan", "play:2", "--step", "60", "--climate", room,
+                         "--format", "json").stdout)
+    assert {c["topic"] for c in doc["cautions"]} == {"heat", "players", "damp"}
+    assert "maker's instructions" in doc["care_note"]
+    from drift import render
+
+    flute = bundled_warmups["side-blown-flute"]
+    header = render.warmup_table(flute, all_notes=True).splitlines()[1]
+    assert all(f"{n} ¢" in header for n in {r["note"] for r in flute["rows"]})
+    assert len(flute["key_notes"]) < len({r["note"] for r in flute["rows"]})

@@ -196,3 +196,76 @@ def test_bad_player_files_are_named(write_toml, player, needle):
     path = write_toml(f'name = "x"\n[air]\ntemperature_c = 18\n[player]\n{player}', "room.toml")
     with pytest.raises(InputFileError, match=needle.replace("(", r"\(")):
         climate.load_climate(str(path))
+
+
+CHANGING = '''name = "evening"
+[air]
+temperature_c = 29
+relative_humidity_pct = 60
+altitude_m = 800
+sun_w_m2 = 400
+wind_m_s = 2
+[[change]]
+minute = 30
+temperature_c = 25
+sun_w_m2 = 0
+[[change]]
+minute = 90
+relative_humidity_pct = 80
+'''
+
+
+def test_later_conditions_are_linear_in_time_and_held_after_the_last(write_toml):
+    c = climate.load_climate(str(write_toml(CHANGING)))
+    w = c.weather
+    assert w.times_s == (0.0, 1800.0, 5400.0)
+    # A key left out keeps the value before it (pressure from the altitude, wind, humidity).
+    assert w.rooms[1].pressure_pa == c.room.pressure_pa and w.rooms[1].wind_m_s == 2.0
+    assert w.rooms[1].relative_humidity == 0.6 and w.rooms[2].temperature_k == w.rooms[1].temperature_k
+    # Halfway through the first change, by hand: 27 °C, 200 W/m2; a third into the second: 60 + 20/3 %.
+    mid = w.room_at(900.0)
+    assert mid.temperature_k == pytest.approx(300.15, abs=1e-12) and mid.sun_w_m2 == pytest.approx(200.0)
+    assert w.room_at(3000.0).relative_humidity == pytest.approx(0.6 + 0.2 / 3)
+    assert w.room_at(10 * 3600.0) == w.rooms[-1] and w.room_at(0.0) == c.room
+    assert c.schedule() is w
+
+
+def test_a_climate_without_changes_has_no_weather(write_toml):
+    c = climate.load_climate(str(write_toml('name = "x"\n[air]\ntemperature_c = 12.5\n')))
+    assert c.weather is None and c.schedule().rooms == (c.room,)
+    assert c.room.sun_w_m2 == 0.0 and c.room.wind_m_s == 0.0
+
+
+def test_bundled_evening_cools_after_sunset():
+    evening = climate.load_climate("hillside-evening")
+    rooms = evening.weather.rooms
+    assert rooms[0].sun_w_m2 > 0 and rooms[-1].sun_w_m2 == 0
+    assert [r.temperature_k for r in rooms] == sorted((r.temperature_k for r in rooms), reverse=True)
+
+
+@pytest.mark.parametrize("extra, needle", [
+    ('[[change]]\ntemperature_c = 20\n', "[[change]] #1 minute is missing"),
+    ('[[change]]\nminute = 30\n[[change]]\nminute = 30\n', "[[change]] #2 minute = 30 must be later"),
+    ('[[change]]\nminute = 0\n', "must be later than the condition before it (0 min)"),
+    ('[[change]]\nminute = 10\nco2_ppm = 900\n', "co2_ppm is not a known key"),
+    ('[[change]]\nminute = 10\nsun_w_m2 = 2000\n', "sun_w_m2 = 2000 is outside the allowed range 0 to 1200"),
+    ('[[change]]\nminute = 10\nwind_m_s = -1\n', "wind_m_s = -1 is outside"),
+    ('[[change]]\nminute = 700\n', "minute = 700 is outside the allowed range 0 to 600 min"),
+    ('change = 3\n', "change must be an array of tables"),
+])
+def test_bad_changes_name_the_entry_and_key(write_toml, extra, needle):
+    # top-level keys come before the [air] table in TOML
+    text = 'name = "x"\n' + (extra if extra.startswith("change") else "") + \
+        '[air]\ntemperature_c = 10\n' + ("" if extra.startswith("change") else extra)
+    with pytest.raises(InputFileError) as info:
+        climate.load_climate(str(write_toml(text, "c.toml")))
+    assert needle in str(info.value) and "c.toml" in str(info.value)
+
+
+def test_sun_and_wind_are_range_checked_in_the_room():
+    with pytest.raises(OutOfRangeError, match="sun w m2"):
+        climate.Room(293.15, sun_w_m2=-1.0)
+    with pytest.raises(OutOfRangeError, match="wind m s"):
+        climate.Room(293.15, wind_m_s=25.0)
+    with pytest.raises(OutOfRangeError):
+        climate.Weather((0.0, 0.0), (climate.Room(293.15), climate.Room(293.15)))

@@ -170,3 +170,22 @@ def test_outer_coefficient_in_still_air_at_room_temperature(outside):
     windy = heat_transfer.outer_coefficient(np.array([t]), t, d, gas, 1.0, eps)
     warm = heat_transfer.outer_coefficient(np.array([t + 10.0]), t, d, gas, 0.0, eps)
     assert float(windy[0]) > float(h[0]) and float(warm[0]) > float(h[0])
+
+
+def test_absorbed_sunshine_is_alpha_g_times_the_projected_area():
+    # A cylinder lit broadside intercepts G D L (its shadow); alpha of it is absorbed
+    # (Incropera et al. 2007, Sec. 12.5; the geometry of a cylinder's shadow).
+    d, length, alpha, g = 0.02, 0.5, 0.4, 900.0
+    outer = np.pi * d * length
+    assert float(heat_transfer.absorbed_sunshine(g, alpha, outer)) == pytest.approx(alpha * g * d * length, rel=1e-12)
+    assert float(heat_transfer.absorbed_sunshine(0.0, alpha, outer)) == 0.0
+
+
+def test_relative_air_speed_adds_in_quadrature():
+    # Mean square of v + w for w of random direction: |v|^2 + |w|^2 (the cross term averages out).
+    rng = np.random.default_rng(1)
+    angle = rng.uniform(0.0, 2 * np.pi, 200_000)
+    v, w = 0.3, 2.0
+    rms = np.sqrt(np.mean((v + w * np.cos(angle)) ** 2 + (w * np.sin(angle)) ** 2))
+    assert float(heat_transfer.relative_air_speed(v, w)) == pytest.approx(rms, rel=1e-2)
+    assert float(heat_transfer.relative_air_speed(0.1, 0.0)) == pytest.approx(0.1, rel=1e-15)

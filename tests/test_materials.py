@@ -81,12 +81,13 @@ def test_default_materials_exist():
 
 
 GOOD = {"expansion_per_k": 1e-5, "density_kg_m3": 1.0, "specific_heat_j_kg_k": 1, "conductivity_w_m_k": 1,
-        "emissivity": 0.5, "wall_mm": 1}
+        "emissivity": 0.5, "solar_absorptance": 0.5, "wall_mm": 1}
 
 
 @pytest.mark.parametrize("table, needle", [
     ({**GOOD, "density_kg_m3": -1.0}, "density_kg_m3"),
     ({**GOOD, "emissivity": 1.5}, "emissivity"),
+    ({**GOOD, "solar_absorptance": 1.2}, "solar_absorptance"),
     ({**GOOD, "colour": "red"}, "colour"),
     ({"expansion_per_k": 1e-5}, "missing"),
     ({**GOOD, "wall_mm": "thin"}, "wall_mm must be a number"),

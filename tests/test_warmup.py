@@ -1,5 +1,7 @@
 """Warm-up in pitch (drift.warmup): sample times, settle times, and the warm-up of real bores."""
 
+import math
+
 import numpy as np
 import pytest
 
@@ -9,6 +11,7 @@ from drift.climate import Room, parse_plan
 from drift.errors import OutOfRangeError
 from drift.instrument import load_instrument
 from drift.scale import cents
+from drift.segments import instrument_wall
 
 ROOM = Room(293.15, 101325.0, 0.5)
 
@@ -16,7 +19,9 @@ ROOM = Room(293.15, 101325.0, 0.5)
 def test_settle_time():
     t = np.arange(6.0)
     values = np.array([[5.0, 1.0], [3.0, 0.5], [1.0, 3.0], [1.5, 0.2], [0.1, 0.1], [0.0, 0.0]])
-    assert warmup.settle_time(t, values, [0.0, 0.0], 2.0) == 3.0
+    # The largest distance minus 2 is +1 at t = 2 and -0.5 at t = 3: it crosses zero, linearly,
+    # at 2 + 1 / 1.5 (by hand).
+    assert warmup.settle_time(t, values, [0.0, 0.0], 2.0) == pytest.approx(2.0 + 1.0 / 1.5, abs=1e-12)
     assert warmup.settle_time(t, values, [0.0, 0.0], 10.0) == 0.0
     late_jump = values + np.array([[0.0, 0.0]] * 5 + [[5.0, 0.0]])
     assert warmup.settle_time(t, late_jump, [0.0, 0.0], 2.0) is None
@@ -142,3 +147,51 @@ def test_pchip_matches_scipy(outside):
                   quantity="monotone cubic interpolation of random and monotone data, 2-15 knots, 301 points each",
                   source="scipy.interpolate.PchipInterpolator, Fritsch & Carlson (1980) (independent library)",
                   abs=1e-12)
+
+
+def test_rest_rows_are_the_played_state_over_the_cooled_wall():
+    # During a rest each row is the first note had playing resumed then: computed here apart
+    # from Trajectory.resumed, from the resting wall through the played heat balance directly.
+    # (Two evaluations of the same model; the tolerance is the interpolation's, 0.05 cent.)
+    from drift.bore_state import BoreProfile
+    from drift.climate import default_blowing
+    from drift.heat_balance import HeatBalance
+
+    inst = load_instrument("side-blown-flute")
+    room = inst.design.room()
+    plan = parse_plan("play:3,rest:2,play:1")
+    result = warmup.warmup_timeline(inst, room, plan, step_s=30.0)
+    trajectory = thermal.instrument_trajectory(inst, room, plan)
+    wall = instrument_wall(inst)
+    balance = HeatBalance(wall, room, default_blowing(inst.excitation), thermal.DEFAULT_BREATH)
+    rows = [k for k, s in enumerate(result.states) if s.phase == "rest"]
+    assert len(rows) == 4
+    for k in rows:
+        resting = trajectory.state(float(result.times_s[k]))
+        assert resting.phase == "rest"
+        _, flows = balance.heat_flows(resting.wall_k[None], True)
+        mean_wall = np.sum(balance.capacity * resting.wall_k, axis=1) / np.sum(balance.capacity, axis=1)
+        played = BoreProfile(room, wall.positions_m, flows.air_k[0], balance.phi_play, mean_wall)
+        f = pitch.frequencies_hz(inst, [played])[0]
+        assert np.max(np.abs(cents(result.frequencies_hz[k], f))) <= 0.05
+    # On average the rest row lies above the resting bore (full of cooling room air), which is
+    # what the rows showed before: warm breath refills the bore of the first note.
+    resting_hz = pitch.frequencies_hz(inst, [trajectory.state(float(result.times_s[rows[-1]])).profile])[0]
+    assert np.mean(cents(result.frequencies_hz[rows[-1]], resting_hz)) > 0.0
+
+
+def test_when_to_tune(bundled_warmups):
+    # The tuning time is where the mean drift enters, for good, the band around its steady value.
+    doc = bundled_warmups["side-blown-flute"]
+    notes = sorted({r["note"] for r in doc["rows"]})
+    cents_at = {}
+    for r in doc["rows"]:
+        cents_at.setdefault(r["minute"], []).append(r["drift_cents"])
+    steady = np.mean([s["drift_cents"] for s in doc["steady"]])
+    tune = doc["tune_minute"]
+    first_play = [m for m in cents_at if m <= 8.0]
+    for m in first_play:
+        inside = abs(np.mean(cents_at[m]) - steady) <= doc["tolerance_cents"]
+        assert inside == (m >= tune), (m, tune)
+    assert len(notes) == len(doc["steady"])
+    assert doc["tune_adjust_mm"] is not None and math.isfinite(doc["tune_adjust_mm"])

@@ -23,6 +23,7 @@ Prints, as markdown table rows:
 4. Section 2 "Acoustics": the outer end correction of the bundled instruments' holes in hole radii
    (``acoustics.outer_end_correction``), and the flute's notes at its design room against its own
    tuning when the lip covers 0, 15, 35 or 45 % of the embouchure hole instead of the file's.
+5. "Outdoors, and weather that changes": the bundled instruments' steady state in sun and wind.
 
 Only table 1 and the thermal loose figures feed the doc as they are; the bundled-instrument table,
 the rest behaviour and the joint figure also depend on the acoustics and the instrument files.
@@ -194,6 +195,26 @@ def instrument_rows() -> tuple[list[str], list[str]]:
     return rows, loose
 
 
+def outdoor_rows() -> list[str]:
+    """Section "Outdoors, and weather that changes": the bundled instruments played to steady
+    state at 25 degC, 50 % RH, sea level, in the shade, in 600 W/m2 of sun, and in that sun with a
+    3 m/s wind: mean wall excess over the air, and mean drift against the shade."""
+    rows = []
+    for instrument in bundled_instruments():
+        cells, shade_hz = [], None
+        for sun, wind in ((0.0, 0.0), (600.0, 0.0), (600.0, 3.0)):
+            room = Room(298.15, 101325.0, 0.5, sun_w_m2=sun, wind_m_s=wind)
+            steady = thermal.instrument_steady_state(instrument, room)
+            f = chart.frequencies(instrument, steady.profile)
+            shade_hz = f if shade_hz is None else shade_hz
+            wall = f"{float(np.mean(steady.wall_k)) - 298.15:+.1f} K"
+            cells.append(wall if sun == 0.0 else f"{wall}, {float(np.nanmean(cents(f, shade_hz))):+.1f} cents")
+        m = instrument.wall_material
+        rows.append(f"| {instrument.name} ({m.name.replace('_', ' ')}, {m.solar_absorptance:g}) | "
+                    + " | ".join(cells) + " |")
+    return rows
+
+
 def main() -> None:
     print("Steady-state and warm-up figures (plain 0.66 m cylinders):")
     for row in cylinder_rows():
@@ -224,7 +245,10 @@ def main() -> None:
     print("Acoustics:")
     for line in acoustic_lines():
         print(line)
-
+    print()
+    print("Outdoors: steady playing at 25 degC, 50 % RH; shade, sun 600 W/m2, sun and 3 m/s wind:")
+    for row in outdoor_rows():
+        print(row)
 
 
 def acoustic_lines() -> list[str]:
