@@ -21,7 +21,7 @@ LAYERS = {
     "thermal": ["bore_state", "heat_balance", "thermal"],
     "pitch": ["pitch"],
     "jobs": ["advice", "layout", "chart", "design", "warmup", "fit", "gig"],
-    "edge": ["render", "render_design", "sheet", "plot", "cli", "__main__", "__init__"],
+    "edge": ["render", "render_design", "sheet", "plot", "options", "cli", "__main__", "__init__"],
 }
 ORDER = [m for modules in LAYERS.values() for m in modules]
 LAYER_OF = {m: layer for layer, modules in LAYERS.items() for m in modules}
