@@ -219,7 +219,7 @@ def reference_joint_change(instrument, profile, reference_hz, drift_cents):
     """The reference joint change [m]: Brent's method on the mean drift, to 1 um."""
     from scipy.optimize import brentq
 
-    free = chart._free_joint(instrument)
+    free = chart.free_joint(instrument)
     known = {0.0: float(np.nanmean(drift_cents))}
 
     def mean_drift(delta_m):
@@ -260,7 +260,7 @@ def reference_drift_chart(instrument, climates):
         if instrument.tuning is not None:
             try:
                 adjust = reference_joint_change(instrument, profile, reference_hz, drift)
-                adjusted = cents(reference_frequencies(chart._free_joint(instrument).with_joint_change(adjust), profile),
+                adjusted = cents(reference_frequencies(chart.free_joint(instrument).with_joint_change(adjust), profile),
                                  reference_hz)
             except OutOfRangeError:
                 pass

@@ -79,7 +79,7 @@ def reference_frequencies(instrument, profile):
 
 
 def reference_joint_change(instrument, profile, reference_hz, start):
-    free = chart._free_joint(instrument)
+    free = chart.free_joint(instrument)
 
     def mean_drift(delta_m):
         return float(np.nanmean(cents(reference_frequencies(free.with_joint_change(delta_m), profile),

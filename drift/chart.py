@@ -164,7 +164,7 @@ def frequencies(instrument: Instrument, profile: BoreProfile) -> np.ndarray:
     return pitch.frequencies_hz(instrument, [profile])[0]
 
 
-def _free_joint(instrument: Instrument) -> Instrument:
+def free_joint(instrument: Instrument) -> Instrument:
     """The instrument with its joint free to move over the whole search range."""
     return dataclasses.replace(instrument, tuning=dataclasses.replace(
         instrument.tuning, min_change_m=-SEARCH_LIMIT_M, max_change_m=SEARCH_LIMIT_M))
@@ -208,7 +208,7 @@ def joint_change(instrument: Instrument, profile: BoreProfile, reference_hz: np.
     (:func:`joint_changes`).
     """
     if drift_cents is None:
-        drift_cents = cents(frequencies(_free_joint(instrument), profile), reference_hz)
+        drift_cents = cents(frequencies(free_joint(instrument), profile), reference_hz)
     (result,) = joint_changes(instrument, [profile], reference_hz, [drift_cents])
     if isinstance(result, OutOfRangeError):
         raise result
@@ -247,7 +247,7 @@ def joint_changes(instrument: Instrument, profiles, reference_hz: np.ndarray, dr
     of the order of that correction). All states advance together, their notes recomputed
     in one batched search per step (:func:`drift.pitch.state_frequencies`).
     """
-    free = _free_joint(instrument)
+    free = free_joint(instrument)
     no_root = OutOfRangeError(
         f"{instrument.name}: no joint change within ±{SEARCH_LIMIT_M * 1e3:g} mm centres the notes")
     n = len(profiles)

@@ -117,7 +117,7 @@ def chart_command(instrument, climate_names, reference_name, a4_hz, show_offsets
         progress.close()
     absorptance = inst.wall_material.solar_absorptance
     cautions = [c for where in climates for c in advice.cautions(inst.material, where, absorptance)]
-    doc = render.chart_document(result, cautions)
+    doc = render.chart_document(result, cautions, climates)
     render.emit(doc, fmt, functools.partial(render.chart_table, offsets=show_offsets), render.chart_csv, output)
     warn_on_stderr(doc, fmt)
     draw("chart", doc, plot_path)
@@ -150,7 +150,8 @@ def warmup_command(instrument, climate_name, plan_text, step_s, reference_name, 
     played and cools during rests; each row gives the drift in cents from the reference. During
     a rest a row gives where the notes would sound if playing resumed then (the wall as it has
     cooled, the bore refilled with breath). `air in` and `air out` are the air temperature [°C]
-    where the breath enters the bore and at its open end. The report ends with the time each
+    where the breath enters the bore and at its open end; `joint mm` how far to move the tuning
+    joint then to centre the notes (+ out, − in). The report ends with the time each
     play phase takes to come within 2 cents of the steady state, when to tune and how far to
     move the joint then, and the care cautions of the climate.
     """

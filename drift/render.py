@@ -45,8 +45,18 @@ def to_csv(rows: list[dict], columns: list[str] | None = None) -> str:
     writer = csv.DictWriter(buffer, fieldnames=columns, lineterminator="\n", extrasaction="ignore")
     writer.writeheader()
     for row in rows:
-        writer.writerow({k: _clean(v) for k, v in row.items()})
+        writer.writerow({k: _csv_cell(v) for k, v in row.items()})
     return buffer.getvalue()
+
+
+def _csv_cell(value):
+    """A CSV cell: NaN and None empty, booleans true/false, lists space-separated."""
+    value = _clean(value)
+    if isinstance(value, bool):
+        return "true" if value else "false"
+    if isinstance(value, list):
+        return " ".join(str(_csv_cell(v)) for v in value)
+    return value
 
 
 def table(rows, headers, colalign=None) -> str:
@@ -126,9 +136,10 @@ def instrument_record(instrument) -> dict:
             "notes": len(instrument.notes)}
 
 
-def chart_document(chart, cautions) -> dict:
-    """A :class:`drift.chart.Chart` and its care cautions (:class:`drift.advice.Caution`) as the
-    JSON document of ``drift chart``."""
+def chart_document(chart, cautions, conditions=()) -> dict:
+    """A :class:`drift.chart.Chart`, its care cautions (:class:`drift.advice.Caution`) and the
+    climates it charts (:class:`drift.climate.Climate`, for their conditions) as the JSON document
+    of ``drift chart``."""
     summary = []
     for s in chart.summary:
         item = {("adjust_mm" if k == "adjust_m" else k): v for k, v in dataclasses.asdict(s).items()
@@ -142,6 +153,7 @@ def chart_document(chart, cautions) -> dict:
         "reference": chart.reference,
         "tolerance_cents": chart.tolerance_cents,
         "climates": chart.climates,
+        "conditions": [climate_record(c) for c in conditions],
         "rows": [dataclasses.asdict(r) for r in chart.rows],
         "summary": summary,
         "cautions": rows,
@@ -182,11 +194,12 @@ def warmup_document(w, cautions=()) -> dict:
     """A :class:`drift.warmup.Warmup` and the climate's care cautions
     (:class:`drift.advice.Caution`) as the JSON document of ``drift warmup``."""
     rows, bore_rows = [], []
-    for t, state, freqs, drift in zip(w.times_s, w.states, w.frequencies_hz, w.drift_cents):
+    joints = [None] * len(w.times_s) if w.joint_m is None else [float(j) * 1e3 for j in w.joint_m]
+    for t, state, freqs, drift, joint in zip(w.times_s, w.states, w.frequencies_hz, w.drift_cents, joints):
         minute = round(float(t) / 60.0, 6)
         for note, f, d in zip(w.notes, freqs, drift):
             rows.append({"minute": minute, "state": state.phase, "note": note, "frequency_hz": float(f),
-                         "drift_cents": float(d)})
+                         "drift_cents": float(d), "joint_mm": joint})
         p = state.profile
         for x, ta, tw, phi in zip(p.positions_m, p.temperature_k, p.wall_temperature_k, p.breath_fraction):
             bore_rows.append({"minute": minute, "position_mm": round(float(x) * 1e3, 3),
@@ -382,9 +395,19 @@ def _offset_table(doc: dict, notes: list[str], first: int, width: int) -> list[s
 CHART_COLUMNS = ["note", "register", "climate", "frequency_hz", "drift_cents", "offset_from_equal_cents"]
 
 
+#: The summary columns of the chart CSV (``kind`` = summary), as in the JSON's ``summary``.
+CHART_SUMMARY_COLUMNS = ["mean_drift_cents", "spread_cents", "adjust_mm", "residual_spread_cents",
+                         "out_of_tolerance", "warning"]
+
+
 def chart_csv(doc: dict) -> str:
-    """The chart rows in long format (one line per note and climate)."""
-    return to_csv(doc["rows"], CHART_COLUMNS)
+    """The chart in one CSV: a ``kind`` column, then one ``drift`` line per note and climate
+    (long format), one ``summary`` line per climate (joint change, spreads, notes still out) and
+    one ``caution`` line per care caution; cells that do not apply are empty."""
+    rows = [{"kind": "drift", **r} for r in doc["rows"]]
+    rows += [{"kind": "summary", **s} for s in doc["summary"]]
+    rows += [{"kind": "caution", **c} for c in doc["cautions"]]
+    return to_csv(rows, ["kind", *CHART_COLUMNS, *CHART_SUMMARY_COLUMNS, "topic", "text"])
 
 
 # --------------------------------------------------------------------------------------------
@@ -393,12 +416,14 @@ def chart_csv(doc: dict) -> str:
 
 
 def _warmup_grid(doc: dict):
-    """Minutes, states, {(minute, note): drift} and {minute: (first, last) air °C} of a document."""
-    minutes, states, drift, ends = [], {}, {}, {}
+    """Minutes, states, {(minute, note): drift}, {minute: (first, last) air °C} and {minute: joint
+    mm} of a document."""
+    minutes, states, drift, ends, joints = [], {}, {}, {}, {}
     for r in doc["rows"]:
         if r["minute"] not in states:
             minutes.append(r["minute"])
             states[r["minute"]] = r["state"]
+            joints[r["minute"]] = r.get("joint_mm")
         drift[(r["minute"], r["note"])] = r["drift_cents"]
     inlet = doc.get("inlet_position_mm", 0.0)
     for b in doc["bore"]:
@@ -406,7 +431,7 @@ def _warmup_grid(doc: dict):
         if first is None or b["position_mm"] <= inlet + 1e-9:
             first = b["air_temperature_c"]  # the last sample at or before the breath's inlet
         ends[b["minute"]] = (first, b["air_temperature_c"])
-    return minutes, states, drift, ends
+    return minutes, states, drift, ends, joints
 
 
 def warmup_table(doc: dict, all_notes: bool = False) -> str:
@@ -414,16 +439,18 @@ def warmup_table(doc: dict, all_notes: bool = False) -> str:
     breath enters and at the open end, and the drift [cents] of a handful of notes (``all_notes``:
     of every note) as columns; the steady state, the settle times, when to tune and the care
     cautions under it."""
-    minutes, states, drift, ends = _warmup_grid(doc)
+    minutes, states, drift, ends, joints = _warmup_grid(doc)
     notes = list(dict.fromkeys(r["note"] for r in doc["rows"])) if all_notes else doc["key_notes"]
+    has_joint = any(j is not None for j in joints.values())
     rows = []
     for m in minutes:
         first, last = ends.get(m, (math.nan, math.nan))
         rows.append([f"{m:g}", states[m], f"{first:.1f}", f"{last:.1f}"]
-                    + [_cents(drift.get((m, n))) for n in notes])
+                    + ([_signed(joints[m])] if has_joint else []) + [_cents(drift.get((m, n))) for n in notes])
     steady = {s["note"]: s["drift_cents"] for s in doc["steady"]}
-    rows.append(["steady", "play", "", ""] + [_cents(steady.get(n)) for n in notes])
-    headers = ["minute", "state", "air in °C", "air out °C"] + [f"{n} ¢" for n in notes]
+    rows.append(["steady", "play", "", ""] + ([""] if has_joint else []) + [_cents(steady.get(n)) for n in notes])
+    headers = (["minute", "state", "air in °C", "air out °C"] + (["joint mm"] if has_joint else [])
+               + [f"{n} ¢" for n in notes])
     head = (f"{doc['instrument']} in {doc['climate']}: drift [cents] against {doc['reference']}\n")
     text = head + table(rows, headers=headers, colalign=("right", "left") + ("right",) * (len(headers) - 2))
     cold = doc.get("settle_from_cold_minutes")
@@ -461,8 +488,18 @@ def _cents(value) -> str:
 
 
 def warmup_csv(doc: dict) -> str:
-    """The ``drift warmup`` rows as CSV, long format (minute, state, note, frequency, drift)."""
-    return to_csv(doc["rows"], ["minute", "state", "note", "frequency_hz", "drift_cents"])
+    """The warm-up in one CSV: a ``kind`` column, then one ``row`` line per minute and note (state,
+    frequency, drift, and the joint setting that centres the row's mean drift), one ``steady``
+    line per note, one ``settle`` line per play phase, a ``from_cold`` line (minutes of continuous
+    playing to settle) and a ``tune`` line (when to tune, the joint change then); cells that do
+    not apply are empty."""
+    rows = [{"kind": "row", **r} for r in doc["rows"]]
+    rows += [{"kind": "steady", "state": "play", **s} for s in doc["steady"]]
+    rows += [{"kind": "settle", **s} for s in doc["settle"]]
+    rows.append({"kind": "from_cold", "minutes_to_settle": doc.get("settle_from_cold_minutes")})
+    rows.append({"kind": "tune", "minute": doc.get("tune_minute"), "joint_mm": doc.get("tune_adjust_mm")})
+    return to_csv(rows, ["kind", "minute", "state", "note", "frequency_hz", "drift_cents", "joint_mm", "phase",
+                         "start_minute", "settled_minute", "minutes_to_settle"])
 
 
 # --------------------------------------------------------------------------------------------
@@ -484,10 +521,10 @@ def resonances_table(doc: dict) -> str:
 
 def resonances_csv(doc: dict) -> str:
     """The ``drift resonances`` document as CSV, one row per resonance (long format)."""
-    rows = [{"instrument": doc["instrument"], "note": f["note"], "register": f["register"], "n": i + 1,
+    rows = [{"instrument": doc["instrument"], "note": f["note"], "register": f["register"], "resonance": i + 1,
              "frequency_hz": v}
             for f in doc["fingerings"] for i, v in enumerate(f["resonances_hz"])]
-    return to_csv(rows, ["instrument", "note", "register", "n", "frequency_hz"])
+    return to_csv(rows, ["instrument", "note", "register", "resonance", "frequency_hz"])
 
 
 def instruments_table(doc: dict) -> str:

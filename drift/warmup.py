@@ -68,6 +68,9 @@ class Warmup:
     tune_adjust_m : float or None
         The joint change [m] that centres the notes' mean at ``tune_s`` (> 0 out); None without
         a joint or when no change centres it.
+    joint_m : ndarray (t,) or None
+        At each row, the joint change [m] (> 0 out) that would centre the notes' mean drift,
+        linearised (:func:`joint_settings`); None without a joint.
     """
 
     notes: tuple[str, ...]
@@ -89,6 +92,7 @@ class Warmup:
     name_warnings: tuple = ()
     tune_s: float | None = None
     tune_adjust_m: float | None = None
+    joint_m: np.ndarray | None = None
 
     @property
     def steady_drift_cents(self) -> np.ndarray:
@@ -399,12 +403,48 @@ def warmup_timeline(instrument: Instrument, room: Room, plan: Sequence[Phase] | 
     from_cold = settle_from_cold(instrument, room, steady_hz, tolerance_cents, breath, blowing, progress)
     tune_s, tune_adjust_m = _tune(instrument, trajectory, plan, times, phase_of_row, drift, steady_hz, ref,
                                   tolerance_cents)
+    joint = joint_settings(instrument, steady.profile, steady_hz, drift)
     wall = instrument_wall(instrument)
     inlet = wall.positions_m[int(np.argmax(wall.flow_fraction > 0.0))]
     far = chart.name_warnings(instrument, notes, ref if at_design and breath == DEFAULT_BREATH else None)
     return Warmup(labels, times, states, freqs, ref, drift, steady_hz, steady, settle, tolerance_cents,
                   tuple(plan), instrument.name, names[0], names[1], from_cold, float(inlet), far, tune_s,
-                  tune_adjust_m)
+                  tune_adjust_m, joint)
+
+
+#: Joint change that measures the pitch's slope against the joint [m].
+JOINT_PROBE_M = 1.0e-3
+
+
+def joint_settings(instrument: Instrument, profile, at_hz, drift_cents) -> np.ndarray | None:
+    """The joint change [m] (> 0 out) that centres the mean drift of each row, linearised.
+
+    The notes' mean pitch moves with the joint change delta nearly linearly (pitch ~ 1/L): its
+    slope s [cent/m] is measured once, in the bore state ``profile`` whose frequencies are
+    ``at_hz``, from a change of :data:`JOINT_PROBE_M`; each row's change is then
+    delta = -mean(drift) / s. The neglected curvature is of the order of delta / L, about 1 % of
+    a change of a few mm (tested against the exact solve of :func:`drift.chart.joint_changes`).
+
+    Parameters
+    ----------
+    instrument : Instrument
+    profile : drift.bore_state.BoreProfile
+        The state the slope is measured in (the steady state of playing).
+    at_hz : ndarray (k,)
+        The notes' frequencies in ``profile`` [Hz].
+    drift_cents : ndarray (t, k)
+        Each row's drift of the notes [cent].
+
+    Returns
+    -------
+    ndarray (t,) [m], or None for an instrument without a joint.
+    """
+    if instrument.tuning is None:
+        return None
+    free = chart.free_joint(instrument)
+    probe = pitch.frequencies_hz(free.with_joint_change(JOINT_PROBE_M), [profile])[0]
+    slope = float(np.nanmean(cents(probe, at_hz))) / JOINT_PROBE_M
+    return -np.nanmean(drift_cents, axis=1) / slope
 
 
 def _tune(instrument, trajectory, plan, times, phase_of_row, drift, steady_hz, reference_hz, tolerance):

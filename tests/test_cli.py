@@ -87,6 +87,7 @@ def test_climates_command(cli):
     doc = json.loads(cli("climates", "--format", "json").stdout)
     assert {c["name"] for c in doc["climates"]} >= {"winter-church", "sunny-lawn", "frozen-parade"}
     rows = list(csv.DictReader(io.StringIO(cli("climates", "--format", "csv").stdout)))
+    assert {r["playing"] for r in rows} == {"true", "false"}    # not Python's True/False
     assert [r["name"] for r in rows] == [c["name"] for c in doc["climates"]]
 
 
@@ -141,14 +142,21 @@ def test_chart_table_fits_100_columns(cli):
 
 
 def test_csv_and_output_file(cli, tmp_path):
-    lines = cli("chart", "--climate", "winter-church", "--climate", "lit-stage", "--format", "csv").stdout.splitlines()
-    assert lines[0] == "note,register,climate,frequency_hz,drift_cents,offset_from_equal_cents"
-    assert {line.split(",")[2] for line in lines[1:]} == {"winter-church", "lit-stage"}
+    text = cli("chart", "--climate", "winter-church", "--climate", "lit-stage", "--format", "csv").stdout
+    rows = list(csv.DictReader(io.StringIO(text)))
+    assert text.splitlines()[0].startswith("kind,note,register,climate,frequency_hz,drift_cents,offset_from_equal_cents")
+    assert {r["climate"] for r in rows if r["kind"] == "drift"} == {"winter-church", "lit-stage"}
+    summary = [r for r in rows if r["kind"] == "summary"]
+    assert [r["climate"] for r in summary] == ["winter-church", "lit-stage"]
+    assert all(r["adjust_mm"] and r["spread_cents"] for r in summary)        # what the table's summary says
+    assert any(r["kind"] == "caution" and r["text"] for r in rows)
     target = tmp_path / "chart.json"
     result = cli("chart", "--climate", "cooled-hall", "--a4", "442", "--format", "json", "--output", target)
     assert result.stdout == ""
     doc = json.loads(target.read_text())
     assert doc["a4_hz"] == 442.0 and doc["climates"] == ["cooled-hall"]
+    (conditions,) = doc["conditions"]                      # each climate's conditions travel with it
+    assert conditions["name"] == "cooled-hall" and conditions["temperature_c"] == 20.5
 
 
 def test_failed_run_leaves_output_file_untouched(cli, tmp_path):
@@ -226,7 +234,7 @@ def test_bundled_default_table_and_csv(cli):
     assert len(lines) == 3 + 18
     rows = list(csv.DictReader(io.StringIO(cli("resonances", "conical-reed", "--note", "Ab4", "--count", "2",
                                                "--format", "csv").stdout)))
-    assert [(r["note"], r["register"], r["n"]) for r in rows] == [("Ab4", "2", "1"), ("Ab4", "2", "2")]
+    assert [(r["note"], r["register"], r["resonance"]) for r in rows] == [("Ab4", "2", "1"), ("Ab4", "2", "2")]
     assert 380 < float(rows[1]["frequency_hz"]) < 450  # register 2 is the second peak: Ab4 = 415 Hz
 
 
@@ -302,9 +310,12 @@ def test_warmup_table_and_csv(cli, warmup_pipe, write_toml):
     assert "within 2 cents of the steady state after 0.0 min" in text
     lines = cli("warmup", warmup_pipe, "--plan", "play:2", "--step", "60", "--climate", room,
                 "--format", "csv").stdout.splitlines()
-    assert lines[0] == "minute,state,note,frequency_hz,drift_cents"
-    assert len(lines) == 1 + 3 * 3
     rows = list(csv.DictReader(io.StringIO("\n".join(lines))))
+    assert lines[0].startswith("kind,minute,state,note,frequency_hz,drift_cents,joint_mm")
+    kinds = [r["kind"] for r in rows]
+    assert kinds.count("row") == 3 * 3 and kinds.count("steady") == 3 and kinds.count("settle") == 1
+    assert "from_cold" in kinds and "tune" in kinds
+    rows = [r for r in rows if r["kind"] == "row"]
     for note in ("D3", "E3", "F#3"):
         drift = [float(r["drift_cents"]) for r in rows if r["note"] == note]
         assert max(drift) - min(drift) < 1e-6, (note, drift)

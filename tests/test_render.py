@@ -143,7 +143,7 @@ def test_resonances_document_shows_registers_only_for_named_notes():
     table = render.resonances_table(bare)
     assert table.splitlines()[0] == "tube" and "(all open)" in table and "f2 Hz" in table
     rows = list(csv.DictReader(io.StringIO(render.resonances_csv(doc))))
-    assert [(r["note"], r["n"]) for r in rows] == [("C4", "1"), ("C4", "2"), ("C5", "1")]
+    assert [(r["note"], r["resonance"]) for r in rows] == [("C4", "1"), ("C4", "2"), ("C5", "1")]
 
 
 def test_default_chart_table_fits_100_columns(default_chart):
@@ -158,9 +158,11 @@ def test_default_chart_table_fits_100_columns(default_chart):
 
 
 def test_chart_csv_is_long_format(default_chart):
-    lines = render.chart_csv(default_chart).splitlines()
-    assert lines[0] == "note,register,climate,frequency_hz,drift_cents,offset_from_equal_cents"
-    assert len(lines) == 1 + len(default_chart["rows"])
+    rows = list(csv.DictReader(io.StringIO(render.chart_csv(default_chart))))
+    kinds = [r["kind"] for r in rows]
+    assert kinds.count("drift") == len(default_chart["rows"])
+    assert kinds.count("summary") == len(default_chart["climates"])
+    assert kinds.count("caution") == len(default_chart["cautions"])
 
 
 def test_warmup_table_and_csv(pipe_warmup):
@@ -169,6 +171,7 @@ def test_warmup_table_and_csv(pipe_warmup):
     assert "minute" in text and "D3" in text and "steady" in text
     assert "play phase 1" in text and "play phase 2" not in text and "play phase 3" in text
     assert "2 cents" in text and "from cold" in text
-    lines = render.warmup_csv(doc).splitlines()
-    assert lines[0] == "minute,state,note,frequency_hz,drift_cents"
-    assert len(lines) == 1 + 3 * 13  # three notes, minutes 0 to 12
+    rows = list(csv.DictReader(io.StringIO(render.warmup_csv(doc))))
+    assert [r["kind"] for r in rows].count("row") == 3 * 13  # three notes, minutes 0 to 12
+    settle = [r for r in rows if r["kind"] == "settle"]
+    assert [r["phase"] for r in settle] == [str(s["phase"]) for s in doc["settle"]]

@@ -195,3 +195,19 @@ def test_when_to_tune(bundled_warmups):
         assert inside == (m >= tune), (m, tune)
     assert len(notes) == len(doc["steady"])
     assert doc["tune_adjust_mm"] is not None and math.isfinite(doc["tune_adjust_mm"])
+
+
+def test_joint_column_is_the_exact_joint_solve_to_one_percent(bundled_instruments):
+    # Consistency of the linearised joint column (joint_settings) with the exact secant solve of
+    # drift.chart.joint_changes, at the first and last rows of a short warm-up: the curvature the
+    # column neglects is of the order of delta / L, about 1 % of the change.
+    from drift import chart
+
+    inst = bundled_instruments["cylindrical-reed"]
+    result = warmup.warmup_timeline(inst, inst.design.room(), "play:2", step_s=120.0)
+    rows = [0, len(result.times_s) - 1]
+    exact = chart.joint_changes(inst, [result.states[k].profile for k in rows], result.reference_hz,
+                                [result.drift_cents[k] for k in rows])
+    for k, (change, _) in zip(rows, exact):
+        assert abs(change) > 1e-3            # a change of some mm to check against
+        assert result.joint_m[k] == pytest.approx(change, rel=0.01)
