@@ -8,8 +8,14 @@ exit status 2.
 from __future__ import annotations
 
 import functools
+import os
 
 import click
+
+# The linear algebra of a run is small (heat balances of tens of unknowns, 2x2 matrices): the
+# threads of the BLAS library only wait for one another, badly so on a busy machine
+# (docs/performance.md). Set before numpy is first imported; a value the user sets wins.
+os.environ.setdefault("OPENBLAS_NUM_THREADS", "1")
 
 from drift import __version__
 from drift.constants import GIG_PLAN, TOLERANCE_CENTS
