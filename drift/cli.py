@@ -263,8 +263,9 @@ def fit_command(log_path, instrument, climate_name, plan_text, a4_hz, player_pat
 @AT_REST_OPTION
 @FORMAT_OPTION
 @OUTPUT_OPTION
+@PLOT_OPTION
 @reports_errors
-def design_command(instrument, a4_hz, rh_pct, climate_names, at_rest, fmt, output):
+def design_command(instrument, a4_hz, rh_pct, climate_names, at_rest, fmt, output, plot_path):
     """The room temperature the instrument is in tune at, and how each note moves there.
 
     INSTRUMENT is a bundled instrument name or an instrument file. The design temperature is the
@@ -277,7 +278,8 @@ def design_command(instrument, a4_hz, rh_pct, climate_names, at_rest, fmt, outpu
     from drift import climate, design, files, render, render_design
     from drift.instrument import DEFAULT_INSTRUMENT, load_instrument
 
-    files.check_outputs([output], [instrument, *climate_names])
+    check_plot(plot_path)
+    files.check_outputs([output, plot_path], [instrument, *climate_names])
     inst = load_instrument(instrument or DEFAULT_INSTRUMENT)
     climates = [climate.load_climate(c) for c in climate_names]
     # batches of bore states: the scan, about three steps of the root, the sensitivities; with
@@ -291,7 +293,9 @@ def design_command(instrument, a4_hz, rh_pct, climate_names, at_rest, fmt, outpu
     table = functools.partial(render_design.design_table,
                               state="at rest" if at_rest else "played to the steady state",
                               compromise_worst_cents=result.compromise_worst_cents)
-    render.emit(render_design.design_document(result), fmt, table, render_design.design_csv, output)
+    doc = render_design.design_document(result)
+    render.emit(doc, fmt, table, render_design.design_csv, output)
+    draw("design", doc, plot_path)
 
 
 @main.command("retune")
@@ -357,8 +361,10 @@ def retune_command(instrument, room_temp_c, rh_pct, a4_hz, at_rest, output, fmt)
 @click.option("--format", "fmt", type=click.Choice(["text", "json"]), default="text", show_default=True,
               help="A sheet of short lines (60 columns) or JSON.")
 @OUTPUT_OPTION
+@PLOT_OPTION
 @reports_errors
-def advise_command(instruments, ensemble_file, climate_name, plan_text, a4_hz, tolerance_cents, fmt, output):
+def advise_command(instruments, ensemble_file, climate_name, plan_text, a4_hz, tolerance_cents, fmt, output,
+                   plot_path):
     """What to tell the players through an evening: one instrument or an ensemble.
 
     INSTRUMENT is a bundled instrument name or an instrument file; repeat it for an ensemble, or
@@ -375,8 +381,11 @@ def advise_command(instruments, ensemble_file, climate_name, plan_text, a4_hz, t
 
     if not instruments and ensemble_file is None:
         raise click.UsageError("give one or more INSTRUMENT, or --ensemble FILE")
-    files.check_outputs([output], [*instruments, ensemble_file, climate_name])
+    check_plot(plot_path)
+    files.check_outputs([output, plot_path], [*instruments, ensemble_file, climate_name])
     group = load_ensemble(ensemble_file) if ensemble_file else None
+    if group:
+        files.check_outputs([output, plot_path], [m.instrument.source for m in group.members])
     try:
         if plan_text:
             plan = climate.parse_plan(plan_text)
@@ -394,6 +403,7 @@ def advise_command(instruments, ensemble_file, climate_name, plan_text, a4_hz, t
         progress.close()
     doc = sheet.gig_document(result)
     write_text(to_json(doc) if fmt == "json" else sheet.gig_sheet(doc), output)
+    draw("advise", doc, plot_path)
 
 
 @main.command("resonances")

@@ -241,10 +241,14 @@ def _span(low: float, high: float, unit: str) -> str:
 def check_outputs(outputs, inputs) -> None:
     """Refuse an output file (``--output``, ``--plot``...) that names one of the input files
     (a bundled name or a path each)."""
+    seen = {}
     for output in outputs:
         if output is None:
             continue
         out = os.path.realpath(output)
+        if out in seen:
+            raise DriftError(f"output {output} is named twice (also as {seen[out]}); give each output its own file")
+        seen[out] = output
         for source in inputs:
             if source and os.path.isfile(str(source)) and os.path.realpath(str(source)) == out:
                 raise DriftError(f"output {output} is the input file {source}; write the result to another file")

@@ -1,4 +1,5 @@
-"""Pictures of results: the chart as a heat map, the warm-up and the fitted warm-up as curves.
+"""Pictures of results: the chart as a heat map, the warm-up and the fitted warm-up as curves,
+the design study as bars of each note's sensitivities, the gig plan as the evening's curves.
 
 Each picture is drawn from the same plain document (boundary units) that :mod:`drift.render`
 shows as a table, by one function ``document -> matplotlib Figure``; :func:`write_picture` saves it
@@ -175,4 +176,132 @@ def fit(doc: dict):
     ax.set_ylabel(f"tuner reading [cents] (A4 = {doc['a4_hz']:g} Hz)")
     ax.legend(fontsize=8, ncols=2, loc="best")
     ax.grid(alpha=0.3)
+    return figure
+
+
+def _pitch_order(names: list) -> list[int]:
+    """Indices of note names from the lowest to the highest (scientific pitch notation); names
+    that are not notes (unnamed fingerings) keep their order after the named ones."""
+    from drift.scale import note_to_midi
+
+    def key(i):
+        try:
+            return (0, note_to_midi(names[i]), i)
+        except ValueError:
+            return (1, 0, i)
+
+    return sorted(range(len(names)), key=key)
+
+
+def _span_at_least(get, set_, span: float) -> None:
+    """Widen an axis (its ``get_xlim``/``set_xlim`` or y pair) to at least ``span`` about its
+    middle, so that next to no change is drawn as such, not magnified to fill the panel."""
+    low, high = get()
+    if high - low < span:
+        middle = 0.5 * (low + high)
+        set_(middle - 0.5 * span, middle + 0.5 * span)
+
+
+#: The panels of the design picture: document key and axis label.
+SENSITIVITY_PANELS = (("cents_per_k", "per K of room\ntemperature [cents]"),
+                      ("cents_per_10pct_rh", "per 10 % of relative\nhumidity [cents]"),
+                      ("cents_per_km_altitude", "per km of altitude\n[cents]"),
+                      ("cents_per_pct_co2", "per % of CO2 in\nthe breath [cents]"))
+
+
+def design(doc: dict):
+    """The ``drift design`` document as bars: how each note (rows, in pitch order, lowest at the
+    bottom) moves at the design temperature per K, per 10 % RH, per km of altitude and per % of
+    breath CO2, one panel each; with climates, under them each climate's mean offset from equal
+    temperament (bars) and its worst note (a point), designed at the design temperature."""
+    import numpy as np
+
+    rows = [doc["sensitivity"][i] for i in _pitch_order([s["note"] for s in doc["sensitivity"]])]
+    notes = [str(s["note"]) for s in rows]
+    climates = doc["climates"]
+    height = 1.6 + 0.22 * len(notes) + (0.9 + 0.3 * len(climates) if climates else 0.0)
+    figure = _figure(9.0, height)
+    layout = [[key for key, _ in SENSITIVITY_PANELS]] + ([["climates"] * 4] if climates else [])
+    ratios = [len(notes) + 2] + ([len(climates) + 2.5] if climates else [])
+    axes = figure.subplot_mosaic(layout, height_ratios=ratios)
+    y = np.arange(len(notes))
+    for k, (key, label) in enumerate(SENSITIVITY_PANELS):
+        ax = axes[key]
+        values = np.array([np.nan if s[key] is None else s[key] for s in rows], dtype=float)
+        ax.barh(y, np.where(np.isfinite(values), values, 0.0), color=np.where(values >= 0, "C3", "C0"),
+                height=0.7)
+        ax.axvline(0.0, color="0.3", lw=0.6)
+        ax.set_yticks(y, notes if k == 0 else [])
+        ax.set_ylim(-0.6, len(notes) - 0.4)
+        _span_at_least(ax.get_xlim, ax.set_xlim, 1.0)
+        ax.set_xlabel(label, fontsize=9)
+        ax.tick_params(labelsize=8)
+        ax.grid(axis="x", alpha=0.3)
+    axes[SENSITIVITY_PANELS[0][0]].set_ylabel("note")
+    figure.suptitle(f"{doc['instrument']}: how each note moves at its design temperature, "
+                    f"{doc['design_temperature_c']:.2f} °C ({doc['relative_humidity_pct']:g} % RH, "
+                    f"A4 = {doc['a4_hz']:g} Hz); + sharper", fontsize=10)
+    if climates:
+        ax = axes["climates"]
+        y = np.arange(len(climates))[::-1]
+        means = [c["mean_offset_cents"] for c in climates]
+        ax.barh(y, means, height=0.6, color=["C3" if m >= 0 else "C0" for m in means], label="mean of the notes")
+        ax.plot([c["worst_offset_cents"] for c in climates], y, "D", color="0.2", ms=5, label="worst note")
+        for yi, c in zip(y, climates):
+            ax.annotate(c["worst_note"], (c["worst_offset_cents"], yi), xytext=(5, 0), textcoords="offset points",
+                        va="center", fontsize=8)
+        ax.axvline(0.0, color="0.3", lw=0.6)
+        ax.set_yticks(y, [c["climate"] for c in climates], fontsize=8)
+        ax.set_ylim(-0.7, len(climates) - 0.3)
+        ax.set_xlabel(f"offset from equal temperament, designed at {doc['design_temperature_c']:.2f} °C [cents]"
+                      f"; compromise design temperature {doc['compromise_temperature_c']:.2f} °C", fontsize=9)
+        ax.tick_params(axis="x", labelsize=8)
+        ax.margins(x=0.12)
+        ax.legend(fontsize=8, loc="best")
+        ax.grid(axis="x", alpha=0.3)
+    return figure
+
+
+def advise(doc: dict):
+    """The ``drift advise`` document over the evening: each instrument's mean drift at the plan's
+    moments, under it (for an ensemble) the widest gap between two instruments and the air
+    temperature at those moments; rests shaded, the moments named along the top. The dotted
+    lines only join the moments (the document holds nothing between them)."""
+    moments = doc["moments"]
+    minutes = [m["minute"] for m in moments]
+    ensemble = len(doc["instruments"]) > 1
+    ratios = [3.2, 1.2, 1.2] if ensemble else [3.2, 1.2]
+    figure = _figure(8.0, 2.0 + 0.8 * sum(ratios))
+    axes = figure.subplots(len(ratios), 1, sharex=True, height_ratios=ratios)
+    ax, air = axes[0], axes[-1]
+    for panel in axes:
+        _shade_rests(panel, doc["plan"])
+        panel.grid(alpha=0.3)
+        panel.tick_params(labelsize=8)
+    joined = {"ls": ":", "lw": 1.0, "ms": 5}
+    for k, name in enumerate(doc["instruments"]):
+        drift = [next(s["mean_drift_cents"] for s in m["instruments"] if s["instrument"] == name) for m in moments]
+        ax.plot(minutes, drift, "o", color=f"C{k % 10}", label=name, **joined)
+    ax.axhline(0.0, color="0.5", lw=0.6)
+    ax.set_ylabel("mean drift [cents]\n(+ sharp, − flat)", fontsize=9)
+    ax.legend(fontsize=8, loc="best", ncols=1 if len(doc["instruments"]) <= 4 else 2)
+    top = ax.secondary_xaxis("top")
+    top.set_xticks(minutes, [m["label"] for m in moments], rotation=90, fontsize=8)
+    if ensemble:
+        gap = axes[1]
+        gap.plot(minutes, [m["widest_gap_cents"] for m in moments], "D", color="0.25", **joined)
+        limit = gap.axhline(doc["tolerance_cents"], color="C3", ls="--", lw=1,
+                            label=f"tolerance {doc['tolerance_cents']:g} cents")
+        gap.set_ylim(bottom=0.0)
+        gap.set_ylabel("widest gap\n[cents]", fontsize=9)
+        gap.legend(handles=[limit], fontsize=8, loc="best")
+    air.plot(minutes, [m["temperature_c"] for m in moments], "s", color="0.35", **joined)
+    _span_at_least(air.get_ylim, air.set_ylim, 2.0)
+    air.set_ylabel("air [°C]", fontsize=9)
+    air.set_xlabel("time since the start [min]")
+    total = sum(p["minutes"] for p in doc["plan"])
+    air.set_xlim(-0.015 * total, 1.015 * total)  # the whole plan, and room for the first and last marks
+    names = ", ".join(doc["instruments"])
+    who = names if len(names) <= 80 else f"{len(doc['instruments'])} instruments"  # the legend names them
+    figure.suptitle(f"{who} in {doc['climate']} (A4 = {doc['a4_hz']:g} Hz)", fontsize=10)
     return figure

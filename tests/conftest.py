@@ -265,6 +265,18 @@ def bundled_warmups():
     return out
 
 
+@pytest.fixture(scope="session")
+def default_design(bundled_instruments):
+    """The design study of the conical reed with two customers' climates: (instrument, climates,
+    :class:`drift.design.DesignResult`)."""
+    from drift import design
+    from drift.climate import load_climate
+
+    ins = bundled_instruments["conical-reed"]
+    climates = [load_climate("winter-church"), load_climate("sunny-lawn")]
+    return ins, climates, design.design_study(ins, climates)
+
+
 #: The plan of the shared warm-up of the test pipe: a rise, a rest and a second rise.
 PIPE_PLAN = "play:6,rest:3,play:3"
 

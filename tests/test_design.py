@@ -15,7 +15,7 @@ from conftest import invoke
 from references import cramer_sound_speed, davis_water_fraction
 
 from drift import chart, design
-from drift.climate import Breath, Climate, Player, Room, load_climate, pressure_from_altitude
+from drift.climate import Breath, Climate, Player, Room, pressure_from_altitude
 from drift.constants import ZERO_CELSIUS
 from drift.errors import DriftError
 from drift.instrument import parse_instrument
@@ -60,14 +60,6 @@ def chart_offsets(ins, climates, a4_hz=None):
     """(climates, notes) offsets from equal temperament [cent] through drift_chart."""
     c = chart.drift_chart(ins, climates, a4_hz=a4_hz)
     return np.array([[r.offset_from_equal_cents for r in c.rows if r.climate == k.name] for k in climates])
-
-
-@pytest.fixture(scope="session")
-def default_design(bundled_instruments):
-    """The design study of the conical reed with two customers' climates."""
-    ins = bundled_instruments["conical-reed"]
-    climates = [load_climate("winter-church"), load_climate("sunny-lawn")]
-    return ins, climates, design.design_study(ins, climates)
 
 
 def test_chart_at_the_design_temperature_is_centred(default_design):

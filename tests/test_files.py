@@ -203,5 +203,7 @@ def test_output_naming_an_input_file_is_refused(tmp_path):
     source.write_text("x")
     files.check_outputs([None], [str(source)])
     files.check_outputs([tmp_path / "other.json", None], [str(source), "cylindrical-reed"])
+    with pytest.raises(DriftError, match="is named twice"):
+        files.check_outputs([tmp_path / "a.json", tmp_path / "b.json", str(tmp_path / "a.json")], [])
     with pytest.raises(DriftError, match="is the input file"):
         files.check_outputs([None, str(source)], ["cylindrical-reed", str(source)])
