@@ -20,8 +20,8 @@ os.environ.setdefault("OPENBLAS_NUM_THREADS", "1")
 from drift import __version__
 from drift.constants import GIG_PLAN, TOLERANCE_CENTS
 from drift.options import (A4_OPTION, AT_REST_OPTION, FORMAT_OPTION, INSTRUMENT_ARGUMENT, OUTPUT_OPTION,
-                           PLOT_OPTION, RH_OPTION, Commands, FiniteRange, LazyProgress, air_options,
-                           check_plot, draw, parse_plan_option, pressure_pa, range_of, reports_errors,
+                           PLOT_OPTION, RH_OPTION, WRITTEN_OPTION, Commands, FiniteRange, LazyProgress,
+                           air_options, check_plot, draw, parse_plan_option, pressure_pa, range_of, reports_errors,
                            warn_on_stderr)
 
 
@@ -96,18 +96,19 @@ def climates_command(fmt):
               default=TOLERANCE_CENTS,
               show_default=True,
               help="In-tune threshold [cents] after the joint change (5 cents is common practice).")
+@WRITTEN_OPTION
 @FORMAT_OPTION
 @OUTPUT_OPTION
 @PLOT_OPTION
 @reports_errors
-def chart_command(instrument, climate_names, reference_name, a4_hz, show_offsets, tolerance_cents, fmt,
+def chart_command(instrument, climate_names, reference_name, a4_hz, show_offsets, tolerance_cents, written, fmt,
                   output, plot_path):
     """Drift of every note across climates, with the tuning-joint change for each.
 
     INSTRUMENT is a bundled instrument name or an instrument file (default: the bundled
     default instrument, see `drift instruments`).
     """
-    from drift import advice, chart, climate, files, render
+    from drift import advice, chart, climate, files, notation, render
     from drift.instrument import DEFAULT_INSTRUMENT, load_instrument
 
     check_plot(plot_path)
@@ -123,8 +124,9 @@ def chart_command(instrument, climate_names, reference_name, a4_hz, show_offsets
         progress.close()
     absorptance = inst.wall_material.solar_absorptance
     cautions = [c for where in climates for c in advice.cautions(inst.material, where, absorptance)]
-    doc = render.chart_document(result, cautions, climates)
-    render.emit(doc, fmt, functools.partial(render.chart_table, offsets=show_offsets), render.chart_csv, output)
+    doc = notation.add_written_notes(render.chart_document(result, cautions, climates), inst.transposition_semitones)
+    table = functools.partial(render.chart_table, offsets=show_offsets)
+    render.emit(doc, fmt, notation.written_table(table, written), render.chart_csv, output)
     warn_on_stderr(doc, fmt)
     draw("chart", doc, plot_path)
 
@@ -144,11 +146,12 @@ def chart_command(instrument, climate_names, reference_name, a4_hz, show_offsets
               help="Condition the drift is measured from. Default: the instrument's [design] condition.")
 @click.option("--all-notes", "all_notes", is_flag=True,
               help="Show every note in the table, not only the lowest, middle, highest and tuning note.")
+@WRITTEN_OPTION
 @FORMAT_OPTION
 @OUTPUT_OPTION
 @PLOT_OPTION
 @reports_errors
-def warmup_command(instrument, climate_name, plan_text, step_s, reference_name, all_notes, fmt, output,
+def warmup_command(instrument, climate_name, plan_text, step_s, reference_name, all_notes, written, fmt, output,
                    plot_path):
     """Pitch of every note over a play/rest plan, and the time it takes to settle.
 
@@ -161,7 +164,7 @@ def warmup_command(instrument, climate_name, plan_text, step_s, reference_name, 
     play phase takes to come within 2 cents of the steady state, when to tune and how far to
     move the joint then, and the care cautions of the climate.
     """
-    from drift import advice, climate, files, render, thermal, warmup
+    from drift import advice, climate, files, notation, render, thermal, warmup
     from drift.constants import ZERO_CELSIUS
     from drift.instrument import DEFAULT_INSTRUMENT, load_instrument
 
@@ -195,8 +198,9 @@ def warmup_command(instrument, climate_name, plan_text, step_s, reference_name, 
         progress.close()
     cautions = (advice.cautions(inst.material, where, inst.wall_material.solar_absorptance)
                 if climate_name else [])
-    doc = render.warmup_document(result, cautions)
-    render.emit(doc, fmt, functools.partial(render.warmup_table, all_notes=all_notes), render.warmup_csv, output)
+    doc = notation.add_written_notes(render.warmup_document(result, cautions), inst.transposition_semitones)
+    table = functools.partial(render.warmup_table, all_notes=all_notes)
+    render.emit(doc, fmt, notation.written_table(table, written), render.warmup_csv, output)
     warn_on_stderr(doc, fmt)
     draw("warmup", doc, plot_path)
 
@@ -261,11 +265,12 @@ def fit_command(log_path, instrument, climate_name, plan_text, a4_hz, player_pat
               help="A customer's climate (bundled name or climate file); repeat for several. Adds each "
                    "climate's offsets and the compromise design temperature.")
 @AT_REST_OPTION
+@WRITTEN_OPTION
 @FORMAT_OPTION
 @OUTPUT_OPTION
 @PLOT_OPTION
 @reports_errors
-def design_command(instrument, a4_hz, rh_pct, climate_names, at_rest, fmt, output, plot_path):
+def design_command(instrument, a4_hz, rh_pct, climate_names, at_rest, written, fmt, output, plot_path):
     """The room temperature the instrument is in tune at, and how each note moves there.
 
     INSTRUMENT is a bundled instrument name or an instrument file. The design temperature is the
@@ -275,7 +280,7 @@ def design_command(instrument, a4_hz, rh_pct, climate_names, at_rest, fmt, outpu
     in the breath. With --climate, each climate's offsets for that design and the compromise
     design temperature that keeps the worst climate's mean offset smallest.
     """
-    from drift import climate, design, files, render, render_design
+    from drift import climate, design, files, notation, render, render_design
     from drift.instrument import DEFAULT_INSTRUMENT, load_instrument
 
     check_plot(plot_path)
@@ -293,8 +298,8 @@ def design_command(instrument, a4_hz, rh_pct, climate_names, at_rest, fmt, outpu
     table = functools.partial(render_design.design_table,
                               state="at rest" if at_rest else "played to the steady state",
                               compromise_worst_cents=result.compromise_worst_cents)
-    doc = render_design.design_document(result)
-    render.emit(doc, fmt, table, render_design.design_csv, output)
+    doc = notation.add_written_notes(render_design.design_document(result), inst.transposition_semitones)
+    render.emit(doc, fmt, notation.written_table(table, written), render_design.design_csv, output)
     draw("design", doc, plot_path)
 
 
@@ -414,10 +419,11 @@ def advise_command(instruments, ensemble_file, climate_name, plan_text, a4_hz, t
 @click.option("--lossless", is_flag=True, help="Drop wall and radiation losses (for validation).")
 @click.option("--count", type=click.IntRange(1, 20), default=5, show_default=True,
               help="Resonances per fingering, 1 to 20.")
+@WRITTEN_OPTION
 @FORMAT_OPTION
 @reports_errors
 def resonances_command(instrument, note_name, temp_c, rh_pct, pressure_kpa, altitude_m, co2_ppm,
-                       lossless, count, fmt):
+                       lossless, count, written, fmt):
     """Resonance frequencies of each fingering: impedance peaks (reed, lips) or dips (jet).
 
     INSTRUMENT is a bundled instrument name or an instrument file (default: the bundled default,
@@ -425,7 +431,7 @@ def resonances_command(instrument, note_name, temp_c, rh_pct, pressure_kpa, alti
     its walls are at that temperature. A named note that plays more than 50 cents from its
     name at the instrument's design condition is flagged.
     """
-    from drift import chart, pitch, render
+    from drift import chart, notation, pitch, render
     from drift.climate import Room
     from drift.constants import ZERO_CELSIUS
     from drift.instrument import DEFAULT_INSTRUMENT, load_instrument
@@ -441,8 +447,9 @@ def resonances_command(instrument, note_name, temp_c, rh_pct, pressure_kpa, alti
         notes = chosen
     room = Room(temp_c + ZERO_CELSIUS, pressure_pa(pressure_kpa, altitude_m), rh_pct / 100.0, co2_ppm * 1e-6)
     found = pitch.find_resonances(inst, room, count=count, notes=notes, lossless=lossless)
-    doc = render.resonances_document(found, chart.name_warnings(inst, notes))
-    render.emit(doc, fmt, render.resonances_table, render.resonances_csv)
+    doc = notation.add_written_notes(render.resonances_document(found, chart.name_warnings(inst, notes)),
+                                     inst.transposition_semitones)
+    render.emit(doc, fmt, notation.written_table(render.resonances_table, written), render.resonances_csv)
     warn_on_stderr(doc, fmt)
 
 

@@ -24,14 +24,15 @@ from drift.errors import DriftError, InputFileError, OutOfRangeError
 from drift.files import Table, bundled_files, load_named, short_repr
 from drift.materials import DEFAULT_MATERIALS, Material, material
 from drift.scale import note_to_midi
+from drift.valves import Slide, Valve, parse_note_path, parse_slide, parse_stations, parse_valves
 
 EXCITATIONS = ("reed", "lips", "jet")
 
 TOP_KEYS = ("name", "description", "excitation", "material", "reference_temperature_c", "wall_mm",
-            "bore", "input", "hole", "note", "design", "tuning")
+            "transposition_semitones", "bore", "input", "hole", "valve", "slide", "note", "design", "tuning")
 BORE_KEYS = ("stations_mm",)
 HOLE_KEYS = ("name", "position_mm", "diameter_mm", "chimney_mm")
-NOTE_KEYS = ("name", "closed", "register")
+NOTE_KEYS = ("name", "closed", "register", "valves", "slide_position", "slide_mm")
 DESIGN_KEYS = ("temperature_c", "relative_humidity_pct", "pressure_kpa", "co2_ppm", "playing", "a4_hz")
 TUNING_KEYS = ("position_mm", "min_change_mm", "max_change_mm")
 INPUT_KEYS = {
@@ -80,6 +81,8 @@ DEFAULT_REFERENCE_TEMPERATURE = ZERO_CELSIUS + 20.0
 #: joint pushed in up to 2 mm or pulled out up to 6 mm).
 DEFAULT_MIN_CHANGE = -2.0e-3
 DEFAULT_MAX_CHANGE = 6.0e-3
+#: Largest transposition accepted [semitones]: three octaves either way.
+MAX_TRANSPOSITION = 36
 #: The bundled instrument commands use when none is named.
 DEFAULT_INSTRUMENT = "cylindrical-reed"
 
@@ -109,12 +112,20 @@ class Note:
 
     ``name`` is the sounding pitch in scientific pitch notation (None for an unnamed fingering);
     ``register`` 1 is the lowest resonance of the fingering (peak of |Z| for reed and lips, dip
-    for jet), 2 the next, ...
+    for jet), 2 the next, ...; ``valves`` names the valves pressed and ``slide_m`` [m] is how far
+    the slide is out (its travel; the air path grows by :data:`drift.valves.SLIDE_LEGS` times it).
     """
 
     name: str | None
     closed: tuple[str, ...]
     register: int = 1
+    valves: tuple[str, ...] = ()
+    slide_m: float = 0.0
+
+    @property
+    def path(self) -> tuple:
+        """What sets the bore this note plays on: the valves pressed and the slide's travel."""
+        return (tuple(sorted(self.valves)), self.slide_m)
 
 
 @dataclass(frozen=True)
@@ -201,7 +212,9 @@ class Instrument:
     """A wind instrument: bore, holes, fingerings, input end, tuning joint and design condition.
 
     ``stations_m`` is an (n, 2) array of [position from the input end, inner diameter] [m],
-    positions strictly ascending; the bore is conical between stations.
+    positions strictly ascending; the bore is conical between stations. Notes are named by their
+    sounding pitch; ``transposition_semitones`` is written minus sounding pitch (2 for an
+    instrument in B♭, 0 at concert pitch; :func:`drift.scale.written_name`).
     """
 
     name: str
@@ -218,6 +231,9 @@ class Instrument:
     wall_m: float | None = None
     description: str = ""
     source: str = ""
+    transposition_semitones: int = 0
+    valves: tuple[Valve, ...] = ()
+    slide: Slide | None = None
 
     @property
     def length_m(self) -> float:
@@ -315,11 +331,16 @@ class Instrument:
                     )
                 h = dataclasses.replace(h, position_m=h.position_m + delta_m)
             holes.append(h)
-        tuning = self.tuning
+        tuning, slide = self.tuning, self.slide
         if tuning is not None and tuning.position_m > p:
             tuning = dataclasses.replace(tuning, position_m=tuning.position_m + delta_m)
+        if slide is not None and slide.position_m > p:
+            slide = dataclasses.replace(slide, position_m=slide.position_m + delta_m)
+        valves = tuple(dataclasses.replace(v, position_m=v.position_m + delta_m) if v.position_m > p else v
+                       for v in self.valves)
         stations = _dedupe(np.array(new, dtype=float))
-        return dataclasses.replace(self, stations_m=stations, holes=tuple(holes), tuning=tuning)
+        return dataclasses.replace(self, stations_m=stations, holes=tuple(holes), tuning=tuning, valves=valves,
+                                   slide=slide)
 
 
 
@@ -353,9 +374,14 @@ def parse_instrument(data: dict, path: str | Path = "<instrument>") -> Instrumen
     t_ref = top.number("reference_temperature_c", 20.0, low=-30.0, high=60.0, unit="°C") + ZERO_CELSIUS
     wall = top.number("wall_mm", None, low=0.1, high=50.0, unit="mm")
     wall_m = None if wall is None else wall * 1e-3
+    transposition = top.data.get("transposition_semitones", 0)
+    if isinstance(transposition, bool) or not isinstance(transposition, int) \
+            or abs(transposition) > MAX_TRANSPOSITION:
+        top.fail("transposition_semitones", f"= {short_repr(transposition)} must be a whole number from "
+                 f"-{MAX_TRANSPOSITION} to {MAX_TRANSPOSITION} (written minus sounding pitch)")
 
     bore = top.table("bore", BORE_KEYS, required=True)
-    stations = _stations(bore)
+    stations = parse_stations(bore)
 
     inp = _input_end(top, excitation, stations)
     default_chimney = wall_m
@@ -380,6 +406,8 @@ def parse_instrument(data: dict, path: str | Path = "<instrument>") -> Instrumen
 
     _check_hole_spacing(top, holes)
     names = [h.name for h in holes]
+    valves = parse_valves(top, stations, holes)
+    slide = parse_slide(top, stations)
     notes = []
     for t in top.tables("note", NOTE_KEYS):
         nname = t.string("name", required=True)
@@ -398,7 +426,7 @@ def parse_instrument(data: dict, path: str | Path = "<instrument>") -> Instrumen
         register = t.data.get("register", 1)
         if isinstance(register, bool) or not isinstance(register, int) or not 1 <= register <= 12:
             t.fail("register", f"= {short_repr(register)} must be a whole number from 1 to 12")
-        notes.append(Note(nname, tuple(closed), register))
+        notes.append(Note(nname, tuple(closed), register, *parse_note_path(t, valves, slide)))
 
     d = top.table("design", DESIGN_KEYS)
     design = Design(
@@ -420,35 +448,17 @@ def parse_instrument(data: dict, path: str | Path = "<instrument>") -> Instrumen
         for h in holes:
             if abs(h.position_m - pos * 1e-3) < h.diameter_m / 2:
                 tt.fail("position_mm", f"= {pos:g} lies within hole {h.name}; put the joint between holes")
+        for v in valves:
+            if abs(v.position_m - pos * 1e-3) < 1e-9:
+                tt.fail("position_mm", f"= {pos:g} is where valve {v.name} sits; put the joint beside it")
         tuning = Tuning(pos * 1e-3, mn * 1e-3, mx * 1e-3)
 
     return Instrument(
         name=name, excitation=excitation, stations_m=stations, holes=tuple(holes), notes=tuple(notes),
         input_end=inp, design=design, tuning=tuning, material=material_name, reference_temperature_k=t_ref,
-        wall_m=wall_m, description=description, source=str(path),
+        valves=tuple(valves), slide=slide,
+        wall_m=wall_m, description=description, source=str(path), transposition_semitones=transposition,
     )
-
-
-def _stations(bore: Table) -> np.ndarray:
-    raw = bore.data.get("stations_mm")
-    if raw is None:
-        bore.fail("stations_mm", "is missing (a list of [position_mm, diameter_mm] pairs is required)")
-    if not isinstance(raw, list) or len(raw) < 2:
-        bore.fail("stations_mm", "must list at least two [position_mm, diameter_mm] pairs")
-    out = []
-    for i, pair in enumerate(raw):
-        if not isinstance(pair, list) or len(pair) != 2:
-            bore.fail("stations_mm", f"entry {i + 1} must be a pair [position_mm, diameter_mm]")
-        x = bore.check_number(f"stations_mm entry {i + 1} position", pair[0], 0.0, 10000.0, "mm")
-        dia = bore.check_number(f"stations_mm entry {i + 1} diameter", pair[1], 0.5, 500.0, "mm")
-        out.append((x * 1e-3, dia * 1e-3))
-    out = np.array(out)
-    if out[0, 0] != 0.0:
-        bore.fail("stations_mm", f"must start at position 0 (the input end), not {out[0, 0] * 1e3:g} mm")
-    if np.any(np.diff(out[:, 0]) <= 0):
-        i = int(np.argmax(np.diff(out[:, 0]) <= 0)) + 2
-        bore.fail("stations_mm", f"positions must increase strictly (entry {i})")
-    return out
 
 
 def _input_end(top: Table, excitation: str, stations: np.ndarray) -> InputEnd:
@@ -542,8 +552,8 @@ def bundled_instruments() -> list[Instrument]:
     Examples
     --------
     >>> from drift import bundled_instruments
-    >>> [i.name for i in bundled_instruments()]
-    ['conical-reed', 'cylindrical-reed', 'side-blown-flute']
+    >>> [i.name for i in bundled_instruments()][:3]
+    ['conical-reed', 'cylindrical-reed', 'double-reed']
     """
     return [load_instrument(name) for name in sorted(bundled_files(_bundled_dir()))]
 
@@ -572,6 +582,8 @@ def to_toml(instrument: Instrument, header: str = "") -> str:
     lines.append(f"reference_temperature_c = {_fmt(ins.reference_temperature_k - ZERO_CELSIUS, 2)}")
     if ins.wall_m is not None:
         lines.append(f"wall_mm = {_fmt(ins.wall_m * 1e3)}")
+    if ins.transposition_semitones:
+        lines.append(f"transposition_semitones = {ins.transposition_semitones}")
     lines += ["", "[bore]", "stations_mm = ["]
     lines += [f"    [{_fmt(x * 1e3)}, {_fmt(d * 1e3)}]," for x, d in ins.stations_m]
     lines.append("]")
@@ -607,12 +619,25 @@ def to_toml(instrument: Instrument, header: str = "") -> str:
         lines += ["", "[tuning]", f"position_mm = {_fmt(t.position_m * 1e3)}",
                   f"min_change_mm = {_fmt(t.min_change_m * 1e3)}",
                   f"max_change_mm = {_fmt(t.max_change_m * 1e3)}"]
+    if ins.slide is not None:
+        sl = ins.slide
+        lines += ["", "[slide]", f"position_mm = {_fmt(sl.position_m * 1e3)}",
+                  f"positions_mm = [{', '.join(_fmt(x * 1e3) for x in sl.positions_m)}]",
+                  f"max_travel_mm = {_fmt(sl.max_travel_m * 1e3)}"]
+    for v in ins.valves:
+        loop = ", ".join(f"[{_fmt(x * 1e3)}, {_fmt(d * 1e3)}]" for x, d in v.loop_stations_m)
+        lines += ["", "[[valve]]", f"name = {_quote(v.name)}", f"position_mm = {_fmt(v.position_m * 1e3)}",
+                  f"stations_mm = [{loop}]"]
     for h in ins.holes:
         lines += ["", "[[hole]]", f"name = {_quote(h.name)}", f"position_mm = {_fmt(h.position_m * 1e3)}",
                   f"diameter_mm = {_fmt(h.diameter_m * 1e3)}", f"chimney_mm = {_fmt(h.chimney_m * 1e3)}"]
     for n in ins.notes:
         closed = ", ".join(_quote(c) for c in n.closed)
         lines += ["", "[[note]]", f"name = {_quote(n.name)}", f"closed = [{closed}]", f"register = {n.register}"]
+        if n.valves:
+            lines.append(f"valves = [{', '.join(_quote(v) for v in n.valves)}]")
+        if n.slide_m:
+            lines.append(f"slide_mm = {_fmt(n.slide_m * 1e3)}")
     return "\n".join(lines) + "\n"
 
 

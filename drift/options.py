@@ -212,3 +212,9 @@ RH_OPTION = click.option("--rh", "rh_pct", type=range_of("relative_humidity_pct"
 AT_REST_OPTION = click.option("--at-rest", is_flag=True,
                               help="In tune at rest (bore full of room air at room temperature) instead of "
                                    "played to the steady state.")
+
+
+WRITTEN_OPTION = click.option("--written", is_flag=True,
+                              help="Show written note names in the table (the instrument file's "
+                                   "transposition_semitones); JSON always carries both note (sounding) and "
+                                   "written_note.")

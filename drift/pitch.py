@@ -27,7 +27,7 @@ from drift.climate import Room
 from drift.constants import SEGMENT_LENGTH_M
 from drift.instrument import Instrument, Note
 from drift.scale import cents, equal_temperament_hz
-from drift.segments import expanded_segments
+from drift.segments import PlayedPath, expanded_segments, played_path
 from drift.bore_state import BoreProfile
 
 # --------------------------------------------------------------------------------------------
@@ -316,6 +316,39 @@ def bore_network(instrument: Instrument, profile: BoreProfile, lossless: bool = 
     return Network(segs, state.properties, lossless=lossless, radiation=radiation)
 
 
+class PathProfile:
+    """A bore profile seen along a note's played path (valve loops, slide extension): the air
+    and wall at a point of the path are those of the profile where the point lies on the bore
+    without loops (:meth:`drift.segments.PlayedPath.open_position`), so a loop in use holds the
+    state of the bore at its valve, and a loop not in use is not in the path."""
+
+    def __init__(self, profile: BoreProfile, path: PlayedPath):
+        self.profile, self.path = profile, path
+
+    def wall_temperature_at(self, positions_m):
+        return self.profile.wall_temperature_at(self.path.open_position(positions_m))
+
+    def air_at(self, positions_m):
+        return self.profile.air_at(self.path.open_position(positions_m))
+
+
+def played_paths(instrument: Instrument, notes, profile: BoreProfile) -> list:
+    """The notes grouped by the bore they play on: a list of (path instrument, its bore profile,
+    indices into ``notes``). An instrument without valves or slide is one group, as it stands;
+    otherwise one group per set of valves pressed and slide travel
+    (:func:`drift.segments.played_path`, :class:`PathProfile`)."""
+    if not instrument.valves and instrument.slide is None:
+        return [(instrument, profile, list(range(len(notes))))]
+    groups: dict = {}
+    for i, note in enumerate(notes):
+        groups.setdefault(note.path, []).append(i)
+    out = []
+    for idx in groups.values():
+        path = played_path(instrument, notes[idx[0]])
+        out.append((path.instrument, PathProfile(profile, path), idx))
+    return out
+
+
 @dataclass(frozen=True)
 class Resonances:
     """The resonance frequencies of an instrument's fingerings at one bore state.
@@ -376,10 +409,13 @@ def find_resonances(instrument: Instrument, air: Room | BoreProfile, count: int 
     """
     profile = BoreProfile.uniform(air) if isinstance(air, Room) else air
     notes = instrument.fingerings() if notes is None else tuple(notes)
-    net = bore_network(instrument, profile, lossless, max_segment_m, radiation=radiation)
-    mask = instrument.open_mask(notes)
     minima = instrument.excitation == "jet" if minima is None else minima
-    found = search_resonances(net, mask, [count] * len(notes), minima=minima)
+    found: list = [None] * len(notes)
+    for path, view, idx in played_paths(instrument, notes, profile):
+        net = bore_network(path, view, lossless, max_segment_m, radiation=radiation)
+        mask = path.open_mask([notes[i] for i in idx])
+        for i, res in zip(idx, search_resonances(net, mask, [count] * len(idx), minima=minima)):
+            found[i] = res
     return Resonances(instrument.name, notes, found)
 
 
@@ -402,7 +438,8 @@ def note_frequencies(instrument: Instrument, profile: BoreProfile, lossless: boo
     a4_hz : float, optional
         Reference pitch of the targets [Hz] (default: the instrument's design A4).
     network : drift.network.Network, optional
-        A prebuilt network (skips discretisation and air evaluation).
+        A prebuilt network (skips discretisation and air evaluation); not for an instrument with
+        valves or a slide, whose notes play on several bores.
 
     Returns
     -------
@@ -415,11 +452,17 @@ def note_frequencies(instrument: Instrument, profile: BoreProfile, lossless: boo
     """
     notes = instrument.fingerings() if notes is None else tuple(notes)
     a4 = instrument.design.a4_hz if a4_hz is None else a4_hz
-    net = network or bore_network(instrument, profile, lossless, max_segment_m)
-    mask = instrument.open_mask(notes)
-    found = search_resonances(net, mask, [n.register for n in notes], minima=instrument.excitation == "jet")
+    if network is not None and (instrument.valves or instrument.slide is not None):
+        raise ValueError("a prebuilt network serves one bore; an instrument with valves or a slide has several")
+    played = np.full(len(notes), math.nan)
+    for path, view, idx in played_paths(instrument, notes, profile):
+        net = network or bore_network(path, view, lossless, max_segment_m)
+        sub = [notes[i] for i in idx]
+        found = search_resonances(net, path.open_mask(sub), [n.register for n in sub],
+                                  minima=instrument.excitation == "jet")
+        played[idx] = _played(sub, found)
     out = []
-    for note, f in zip(notes, _played(notes, found)):
+    for note, f in zip(notes, played):
         if note.name is None:
             out.append(NoteFrequency(None, None if not instrument.notes else note.register, f))
             continue
@@ -459,22 +502,23 @@ def state_frequencies(instruments, profiles, lossless: bool = False,
     (:meth:`drift.network.Network.stack`) and searched together
     (:func:`search_resonances`): one pass along the bore serves them all.
     """
-    nets = [bore_network(i, p, lossless, max_segment_m) for i, p in zip(instruments, profiles)]
+    parts = []            # (pair, note indices, network, notes, open mask): one per played path of a pair
+    for k, (ins, profile) in enumerate(zip(instruments, profiles)):
+        notes = ins.fingerings()
+        for path, view, idx in played_paths(ins, notes, profile):
+            sub = [notes[i] for i in idx]
+            parts.append((k, idx, bore_network(path, view, lossless, max_segment_m), sub, path.open_mask(sub)))
     groups: dict = {}
-    for k, (ins, net) in enumerate(zip(instruments, nets)):
-        notes = ins.fingerings()
-        mask = ins.open_mask(notes)
-        key = (net.topology, mask.shape, mask.tobytes(), tuple(n.register for n in notes), ins.excitation)
-        groups.setdefault(key, []).append(k)
-    out: list = [None] * len(nets)
+    for j, (k, _, net, sub, mask) in enumerate(parts):
+        key = (net.topology, mask.shape, mask.tobytes(), tuple(n.register for n in sub), instruments[k].excitation)
+        groups.setdefault(key, []).append(j)
+    out = [np.full(len(ins.fingerings()), math.nan) for ins in instruments]
     for members in groups.values():
-        ins = instruments[members[0]]
-        notes = ins.fingerings()
-        net = Network.stack([nets[k] for k in members])
-        found = search_resonances(net, ins.open_mask(notes), [n.register for n in notes],
-                                  minima=ins.excitation == "jet")
-        for k, res in zip(members, found):
-            out[k] = _played(notes, res)
+        k, _, _, sub, mask = parts[members[0]]
+        net = Network.stack([parts[j][2] for j in members])
+        found = search_resonances(net, mask, [n.register for n in sub], minima=instruments[k].excitation == "jet")
+        for j, res in zip(members, found):
+            out[parts[j][0]][parts[j][1]] = _played(sub, res)
     return out
 
 

@@ -56,3 +56,54 @@ def equal_temperament_hz(name_or_midi, a4_hz: float = A4_HZ):
 def cents(frequency_hz, reference_hz):
     """Interval [cent] from ``reference_hz`` to ``frequency_hz``: 1200 log2(f / f_ref)."""
     return 1200.0 * np.log2(np.asarray(frequency_hz, dtype=float) / np.asarray(reference_hz, dtype=float))
+
+
+_LETTERS = "CDEFGAB"
+#: Letter steps of each interval of 0 to 11 semitones as the trade spells it: unison, minor
+#: second, major second, minor third, ..., the tritone as an augmented fourth (common practice).
+_INTERVAL_LETTERS = (0, 1, 1, 2, 2, 3, 3, 4, 5, 5, 6, 6)
+#: Key names of transposing instruments: the sounding pitch class of their written C, flats as
+#: the trade names them (B♭ clarinet, E♭ alto saxophone, F horn; common practice).
+_KEY_NAMES = ("C", "Db", "D", "Eb", "E", "F", "Gb", "G", "Ab", "A", "Bb", "B")
+
+
+def written_name(name: str, transposition_semitones: int) -> str:
+    """The written name of a sounding note on a transposing instrument.
+
+    Parameters
+    ----------
+    name : str
+        Sounding pitch in scientific pitch notation ("Bb3", "F#4"; also ♯ ♭).
+    transposition_semitones : int
+        Written pitch minus sounding pitch [semitones]: 2 for an instrument in B♭ (written C4
+        sounds B♭3), 7 in F, -3 for one in E♭ written a minor third below its sound, 9 for one
+        in E♭ written a major sixth above it (common practice).
+
+    Returns
+    -------
+    str
+        The written note, spelled by moving the letter by the interval's letter steps (a major
+        second moves it one letter, a perfect fifth four) and then choosing the accidental, as
+        a transposed part is written (common practice): "Bb3" -> "C4" and "F#4" -> "G#4" in
+        B♭. Accidentals are written ``#`` and ``b``; where more than two would be needed, the
+        plain sharp spelling is used.
+    """
+    n = int(transposition_semitones)
+    midi = note_to_midi(name) + n
+    letter = _LETTERS.index(_NOTE.match(str(name).strip()).group(1).upper())
+    octaves, rest = divmod(abs(n), 12)
+    steps = (7 * octaves + _INTERVAL_LETTERS[rest]) * (1 if n >= 0 else -1)
+    octave_shift, new_letter = divmod(letter + steps, 7)
+    octave = int(_NOTE.match(str(name).strip()).group(3)) + octave_shift
+    shift = midi - (12 * (octave + 1) + _STEPS[_LETTERS[new_letter]])
+    if abs(shift) > 2:
+        octave, pitch = divmod(midi, 12)
+        sharps = ("C", "C#", "D", "D#", "E", "F", "F#", "G", "G#", "A", "A#", "B")
+        return f"{sharps[pitch]}{octave - 1}"
+    return f"{_LETTERS[new_letter]}{('#' if shift > 0 else 'b') * abs(shift)}{octave}"
+
+
+def key_name(transposition_semitones: int) -> str:
+    """The key a transposing instrument is named by: the sounding pitch class of its written C
+    ("Bb" for 2, "Eb" for -3 or 9, "F" for 7; "C" for an instrument at concert pitch)."""
+    return _KEY_NAMES[(-int(transposition_semitones)) % 12]

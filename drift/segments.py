@@ -19,8 +19,9 @@ import numpy as np
 from drift import acoustics
 from drift.constants import SEGMENT_LENGTH_M
 from drift.errors import OutOfRangeError
-from drift.instrument import DEFAULT_REFERENCE_TEMPERATURE, Instrument
+from drift.instrument import DEFAULT_REFERENCE_TEMPERATURE, Instrument, Note
 from drift.materials import Material
+from drift.valves import SLIDE_LEGS
 
 
 # --------------------------------------------------------------------------------------------
@@ -241,6 +242,85 @@ def expanded_segments(instrument: Instrument, wall_temperature_at,
     return segs.expanded(expansion_factors(t_seg, m.expansion_per_k, t_ref),
                          expansion_factors(t_seg, m.expansion_across_per_k, t_ref),
                          expansion_factors(t_hole, m.expansion_across_per_k, t_ref))
+
+
+# --------------------------------------------------------------------------------------------
+# The played path: the bore with the loops of the valves pressed and the slide's extension
+# --------------------------------------------------------------------------------------------
+
+#: Length of the short cone that stands for a step in diameter where a valve loop of another
+#: diameter meets the bore [m] (station positions must increase strictly).
+LOOP_STEP_M = 0.2e-3
+
+
+@dataclass(frozen=True)
+class PlayedPath:
+    """The air path a note plays on, and where each point of it lies on the bore without loops.
+
+    Attributes
+    ----------
+    instrument : Instrument
+        The bore with the loops inserted (no valves, no slide, no notes): what the acoustics sees.
+    inserts : tuple of (float, float)
+        (position on the bore without loops [m], length inserted [m]) of each loop or slide
+        extension, ascending.
+    """
+
+    instrument: Instrument
+    inserts: tuple[tuple[float, float], ...]
+
+    def open_position(self, positions_m) -> np.ndarray:
+        """Positions [m] on the path mapped to the bore without loops: a point inside an inserted
+        loop maps to the loop's position (its air and wall are taken from there), a point beyond
+        it moves back by the loop's length."""
+        x = np.asarray(positions_m, dtype=float)
+        out, offset = x.copy(), 0.0
+        for p, length in self.inserts:
+            s = p + offset
+            out = np.where((x > s) & (x < s + length), p, np.where(x >= s + length, out - length, out))
+            offset += length
+        return out
+
+
+def played_path(instrument: Instrument, note: Note) -> PlayedPath:
+    """The bore a note plays on: the loops of the valves it presses inserted at their positions,
+    and the slide's extension (a cylinder of the bore diameter there, :data:`SLIDE_LEGS` times the
+    travel long; :meth:`drift.instrument.Instrument.with_length_change`).
+
+    A loop is drawn by its own stations; where its diameter differs from the bore's at the valve,
+    a cone :data:`LOOP_STEP_M` long at each end stands for the step. Holes, the tuning joint and
+    everything beyond an insert move down the bore by its length.
+    """
+    pressed = [v for v in instrument.valves if v.name in note.valves]
+    base = dataclasses.replace(instrument, valves=(), slide=None, notes=())
+    inserts = [(v.position_m, v) for v in pressed]
+    if instrument.slide is not None and note.slide_m > 0:
+        inserts.append((instrument.slide.position_m, SLIDE_LEGS * note.slide_m))
+    path, lengths = base, {}
+    for p, what in sorted(inserts, key=lambda item: -item[0]):    # farthest first: positions hold
+        before = path.length_m
+        path = path.with_length_change(p, what) if isinstance(what, float) else _insert_loop(path, p, what)
+        lengths[p] = lengths.get(p, 0.0) + path.length_m - before
+    return PlayedPath(path, tuple(sorted(lengths.items())))
+
+
+def _insert_loop(instrument: Instrument, position_m: float, valve) -> Instrument:
+    """The instrument with a valve's loop inserted at ``position_m`` [m]."""
+    loop = np.array(valve.loop_stations_m, dtype=float)
+    d_joint = float(instrument.diameter_at(position_m))
+    pieces = [(position_m, d_joint)]
+    if abs(loop[0, 1] - d_joint) > 1e-9:
+        loop[0, 0] = LOOP_STEP_M
+    pieces += [(position_m + x, d) for x, d in loop if x > 0 or abs(d - d_joint) > 1e-9]
+    end = pieces[-1][0]
+    if abs(loop[-1, 1] - d_joint) > 1e-9:
+        end += LOOP_STEP_M
+        pieces.append((end, d_joint))
+    grown = instrument.with_length_change(position_m, end - position_m)
+    x = grown.stations_m
+    keep = (x[:, 0] < position_m - 1e-12) | (x[:, 0] > end + 1e-12)
+    stations = np.concatenate([x[keep & (x[:, 0] < position_m)], pieces, x[keep & (x[:, 0] > end)]])
+    return dataclasses.replace(grown, stations_m=stations)
 
 
 # --------------------------------------------------------------------------------------------

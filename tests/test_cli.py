@@ -9,7 +9,7 @@ import math
 import numpy as np
 import pytest
 
-from conftest import BREATH_WARM_ROOM, CONE, CYLINDER, TWO_HOLE_PIPE, WARM_ROOM, assert_refused
+from conftest import BREATH_WARM_ROOM, BUNDLED, CONE, CYLINDER, TWO_HOLE_PIPE, WARM_ROOM, assert_refused
 from drift import air, climate
 from drift.constants import SPECIES
 from drift.instrument import DEFAULT_INSTRUMENT, load_instrument
@@ -94,7 +94,7 @@ def test_climates_command(cli):
 def test_instruments_listing(cli):
     doc = json.loads(cli("instruments", "--format", "json").stdout)
     names = [i["name"] for i in doc["instruments"]]
-    assert names == ["conical-reed", "cylindrical-reed", "side-blown-flute"]
+    assert names == list(BUNDLED)
     assert all(i["description"] for i in doc["instruments"])
     assert "side-blown-flute" in cli("instruments").stdout
 

@@ -8,9 +8,9 @@ from conftest import CYLINDER, assert_refused, invoke
 from test_design import TUBE_415
 
 CONTRACT = {"instrument", "a4_hz", "relative_humidity_pct", "design_temperature_c", "sensitivity", "climates",
-            "compromise_temperature_c"}
-SENSITIVITY = {"note", "cents_per_k", "cents_per_10pct_rh", "cents_per_km_altitude", "cents_per_pct_co2"}
-CLIMATE = {"climate", "mean_offset_cents", "spread_cents", "worst_note", "worst_offset_cents"}
+            "compromise_temperature_c", "transposition_semitones"}
+SENSITIVITY = {"note", "written_note", "cents_per_k", "cents_per_10pct_rh", "cents_per_km_altitude", "cents_per_pct_co2"}
+CLIMATE = {"climate", "mean_offset_cents", "spread_cents", "worst_note", "written_worst_note", "worst_offset_cents"}
 
 
 @pytest.fixture
@@ -26,7 +26,7 @@ def test_design_json_contract(tube, tmp_path):
     assert doc["instrument"] == "tube 415" and doc["a4_hz"] == 415.0
     assert doc["relative_humidity_pct"] == pytest.approx(50.0)      # the file's default design humidity
     assert [s["note"] for s in doc["sensitivity"]] == ["G3", "D5"]
-    assert all(set(s) == SENSITIVITY and all(isinstance(s[k], float) for k in SENSITIVITY - {"note"})
+    assert all(set(s) == SENSITIVITY and all(isinstance(s[k], float) for k in SENSITIVITY - {"note", "written_note"})
                for s in doc["sensitivity"])
     assert [set(c) for c in doc["climates"]] == [CLIMATE] and doc["climates"][0]["climate"] == "tuning-room"
     assert isinstance(doc["compromise_temperature_c"], float)

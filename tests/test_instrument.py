@@ -53,6 +53,8 @@ def test_full_file(two_hole_pipe):
     (("position_mm = 400.0", "position_mm = 444.0"), ["'h2' and 'h1' overlap", "-1.50 mm", "at least 1 mm apart"]),
     (('name = "E3"', 'name = "E10"'), ["[[note]] #2 name", "octave 10 is outside -1 to 9"]),
     (("register = 1", "register = " + "9" * 400), ["register", "must be a whole number from 1 to 12"]),
+    (('name = "pipe"', 'name = "pipe"\ntransposition_semitones = 2.5'), ["transposition_semitones", "-36 to 36"]),
+    (('name = "pipe"', 'name = "pipe"\ntransposition_semitones = 40'), ["transposition_semitones", "whole number"]),
 ])
 def test_bad_files_name_file_and_key(write_toml, edit, words):
     path = write_toml(TWO_HOLE_PIPE.replace(*edit, 1), "pipe.toml")
@@ -91,6 +93,15 @@ def test_bundled_instruments_meet_their_brief(bundled_instruments):
     assert 0.65 <= b.length_m <= 0.75 and len(b.notes) >= 18 and {n.register for n in b.notes} == {1, 2}
     assert 0.60 <= c.length_m <= 0.66 and len(c.notes) >= 14 and c.excitation == "jet"
     assert a.stations_m[-1, 1] > a.stations_m[0, 1]  # a bell flare
+    # the families of issue 15: a double reed, a duct flute, valved and slide brass
+    reed, duct, slide, valved = (bundled_instruments[n] for n in ("double-reed", "duct-flute", "slide-brass",
+                                                                  "valved-brass"))
+    assert reed.excitation == "reed" and reed.stations_m[-1, 1] > 5 * reed.stations_m[0, 1]   # conical
+    assert duct.excitation == "jet" and duct.input_end.embouchure_position_m == 0.0          # end-blown
+    assert valved.excitation == "lips" and len(valved.valves) == 3 and valved.transposition_semitones == 2
+    assert {len(n.valves) for n in valved.notes} >= {0, 1, 2}
+    assert slide.excitation == "lips" and len(slide.slide.positions_m) == 7
+    assert {n.register for n in slide.notes} >= {2, 3, 4, 5, 6} and min(n.register for n in slide.notes) == 2
 
 
 def test_joint_change(two_hole_pipe):
@@ -131,6 +142,14 @@ def test_toml_round_trip(bundled_instruments):
         assert again.notes == ins.notes and again.design == ins.design and again.tuning == ins.tuning
         assert [h.name for h in again.holes] == [h.name for h in ins.holes]
         assert np.allclose([h.position_m for h in again.holes], [h.position_m for h in ins.holes], atol=1e-6)
+
+
+def test_transposition_is_read_and_written(write_toml):
+    path = write_toml(TWO_HOLE_PIPE.replace('name = "pipe"', 'name = "pipe"\ntransposition_semitones = -3', 1))
+    ins = instrument.load_instrument(path)
+    assert ins.transposition_semitones == -3
+    assert instrument.parse_instrument(tomllib.loads(instrument.to_toml(ins))).transposition_semitones == -3
+    assert instrument.load_instrument(write_toml(TWO_HOLE_PIPE, "plain.toml")).transposition_semitones == 0
 
 
 def test_design_room_and_lip_and_jet_defaults(write_toml):

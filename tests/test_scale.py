@@ -56,3 +56,34 @@ def test_octaves_and_semitones_written_independently(outside):
     assert scale.cents(scale.equal_temperament_hz("A#4"), 440.0) == pytest.approx(100.0)
     assert scale.cents(scale.equal_temperament_hz("E5"), 440.0) == pytest.approx(700.0)
     np.testing.assert_allclose(scale.cents([440.0, 880.0], [220.0, 440.0]), [1200.0, 1200.0])
+
+
+@pytest.mark.parametrize("transposition, key, pairs", [
+    # In B♭ (clarinet, trumpet): written a major second above the sound (common practice).
+    (2, "Bb", [("Bb3", "C4"), ("Eb4", "F4"), ("A4", "B4"), ("F#4", "G#4"), ("C5", "D5"), ("D3", "E3")]),
+    # In E♭, written a minor third below the sound (E♭ soprano clarinet; common practice).
+    (-3, "Eb", [("Eb5", "C5"), ("C5", "A4"), ("G4", "E4"), ("Bb4", "G4"), ("F#5", "D#5")]),
+    # In F (horn): written a perfect fifth above the sound (common practice).
+    (7, "F", [("F3", "C4"), ("Bb3", "F4"), ("A4", "E5"), ("C#4", "G#4"), ("Eb4", "Bb4")]),
+    # In E♭, written a major sixth above the sound (alto saxophone; common practice).
+    (9, "Eb", [("Eb4", "C5"), ("Db4", "Bb4"), ("A3", "F#4")]),
+])
+def test_written_names_of_transposing_instruments(transposition, key, pairs):
+    for sounding, written in pairs:
+        assert scale.written_name(sounding, transposition) == written, (sounding, transposition)
+        assert scale.note_to_midi(written) - scale.note_to_midi(sounding) == transposition
+    assert scale.key_name(transposition) == key
+
+
+def test_written_names_at_concert_pitch_and_in_unicode():
+    assert scale.written_name("F#4", 0) == "F#4"
+    assert scale.written_name("B♭3", 2) == "C4"
+    assert scale.written_name("Bb3", 14) == "C5"
+    assert scale.key_name(0) == "C"
+    # every pitch of two octaves, in every transposition of an octave either way: the written
+    # name is the sounding pitch moved by the interval, with at most two accidentals
+    for midi in range(48, 72):
+        name = ("C", "C#", "D", "Eb", "E", "F", "F#", "G", "Ab", "A", "Bb", "B")[midi % 12] + str(midi // 12 - 1)
+        for t in range(-12, 13):
+            written = scale.written_name(name, t)
+            assert scale.note_to_midi(written) == midi + t, (name, t, written)

@@ -5,7 +5,7 @@ import math
 import numpy as np
 import pytest
 
-from conftest import BUNDLED
+from conftest import WARMED
 from drift import pitch, thermal, warmup
 from drift.climate import Room, parse_plan
 from drift.errors import OutOfRangeError
@@ -69,7 +69,7 @@ def test_settle_from_cold_brackets_the_band(pipe_warmup):
     assert warmup.settle_from_cold(instrument, ROOM, steady_hz, 100.0) == 0.0
 
 
-@pytest.mark.parametrize("name", BUNDLED)
+@pytest.mark.parametrize("name", WARMED)
 def test_each_bundled_instrument_rises_falls_and_settles(bundled_warmups, name):
     doc = bundled_warmups[name]
     # (the shared runs use WARMUP_PLAN: 8 minutes' playing, then 3 minutes' rest)
