@@ -291,8 +291,9 @@ def gas_properties(temperature_k, pressure_pa, mole_fractions) -> GasProperties:
         from drift.gas_table import table_properties
 
         return GasProperties(*(np.reshape(v, shape) for v in table_properties(t, p, x)))
-    # CoolProp cannot solve a mixture without both CO2 and water: a trace of 1e-12 stands in.
-    x = np.where(x > 0.0, x, 1e-12)
+    # CoolProp cannot solve a mixture without both CO2 and water: a trace of 1e-12 stands in for
+    # any smaller fraction (which the rounding of the cache key below would make zero).
+    x = np.maximum(x, 1e-12)
     values = np.array(
         [
             _properties_at(round(ti, 6), round(pi, 3), tuple(np.round(xi, 12)))

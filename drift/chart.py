@@ -420,6 +420,7 @@ def drift_chart(instrument: Instrument, climates: list[Climate], reference: Clim
     """
     if not instrument.notes:
         raise DriftError(f"{instrument.name}: the instrument file has no [[note]]; a chart needs named notes")
+    pitch.check_sounds(instrument)
     a4_hz = instrument.design.a4_hz if a4_hz is None else a4_hz
     at_design = reference is None
     reference = reference or design_climate(instrument)

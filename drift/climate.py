@@ -381,7 +381,11 @@ def parse_climate(data: dict, path: str | Path) -> Climate:
         if player_table.has("breath_temperature_c"):
             player_table.fail("player_file", "and breath_temperature_c exclude each other; the player file "
                                              "gives the breath temperature")
-        fitted = load_player_file(Path(path).parent / player_table.string("player_file"))
+        name = player_table.string("player_file")
+        try:
+            fitted = load_player_file(Path(path).parent / name)
+        except InputFileError as error:
+            player_table.fail("player_file", f"= '{name}' cannot be used: {error}")
     breath = Breath(
         temperature_k=fitted.get("breath_temperature_k", breath_c + ZERO_CELSIUS),
         co2_fraction=player_table.number("breath_co2_pct", default.co2_fraction * 100,

@@ -489,6 +489,7 @@ def retune(instrument: Instrument, temperature_k: float, relative_humidity: floa
     """
     if not instrument.notes:
         raise DriftError(f"{instrument.name}: the instrument file has no [[note]]; a retune needs named notes")
+    pitch.check_sounds(instrument)
     d = instrument.design
     condition = Design(temperature_k, d.relative_humidity if relative_humidity is None else relative_humidity,
                        d.pressure_pa, d.co2_fraction, playing, d.a4_hz if a4_hz is None else a4_hz)

@@ -13,6 +13,7 @@ import math
 import os
 import signal
 import stat
+import sys
 import tempfile
 import threading
 import tomllib
@@ -74,10 +75,11 @@ def read_toml_text(text: str, label: str, what: str = "file") -> dict:
         return tomllib.loads(text)
     except tomllib.TOMLDecodeError as error:
         raise InputFileError(f"{label}: not valid TOML: {error}") from None
-    except ValueError as error:  # an integer beyond Python's digit limit
-        raise InputFileError(f"{label}: a number is too long to read ({error})") from None
+    except ValueError:  # an integer beyond Python's digit limit
+        raise InputFileError(f"{label}: holds a number too long to read (over {sys.get_int_max_str_digits()} "
+                             f"digits); give numbers in a few digits") from None
     except RecursionError:
-        raise InputFileError(f"{label}: arrays or tables are nested too deeply for a {what}") from None
+        raise InputFileError(f"{label}: arrays or tables are nested too deeply for {_article(what)} {what}") from None
 
 
 def choose(name: str, options, what: str, listing: str = "Allowed", more: str = "") -> str:
@@ -214,7 +216,10 @@ class Table:
         except OverflowError:
             self.fail(key, f"is a number beyond any allowed range; allowed: {_span(low, high, unit)}")
         if not math.isfinite(value) or not low <= value <= high:
-            self.fail(key, f"= {value:g} is outside the allowed range {_span(low, high, unit)}")
+            shown = f"{value:g}"
+            if math.isfinite(value) and low <= float(shown) <= high:   # just outside: show every digit
+                shown = repr(value)
+            self.fail(key, f"= {shown} is outside the allowed range {_span(low, high, unit)}")
         return value
 
 

@@ -370,6 +370,7 @@ def fit_player(instrument: Instrument, room: Room, log: TunerLog, plan: Sequence
     """
     from scipy.optimize import least_squares
 
+    pitch.check_sounds(instrument)
     model = LogModel(instrument, room, log, plan, player, a4_hz, progress)
 
     def centred(a):

@@ -266,6 +266,8 @@ def plan_gig(instruments, climate: Climate, plan=GIG_PLAN, a4_hz: float | None =
     marks = plan_moments(plan)
     members = [m if isinstance(m, Member) else Member(m, m.name) for m in instruments]
     instruments = [m.instrument for m in members]
+    for instrument in instruments:
+        pitch.check_sounds(instrument)
     labels = _labels([m.label for m in members])
     per_instrument, breaks = [], []
     for member, label in zip(members, labels):

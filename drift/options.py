@@ -57,7 +57,10 @@ def draw(kind: str, doc: dict, plot_path: str | None) -> None:
 
 
 class FiniteRange(click.FloatRange):
-    """click's FloatRange that also refuses NaN and infinity (which compare as in range)."""
+    """click's FloatRange that also refuses NaN and infinity (which compare as in range); a value
+    that is not a number is called so ("'x' is not a valid number")."""
+
+    name = "number"
 
     def convert(self, value, param, ctx):
         number = super().convert(value, param, ctx)

@@ -25,6 +25,7 @@ import numpy as np
 from drift.network import Network
 from drift.climate import Room
 from drift.constants import SEGMENT_LENGTH_M
+from drift.errors import DriftError
 from drift.instrument import Instrument, Note
 from drift.scale import cents, equal_temperament_hz
 from drift.segments import PlayedPath, expanded_segments, played_path
@@ -417,6 +418,30 @@ def find_resonances(instrument: Instrument, air: Room | BoreProfile, count: int 
         for i, res in zip(idx, search_resonances(net, mask, [count] * len(idx), minima=minima)):
             found[i] = res
     return Resonances(instrument.name, notes, found)
+
+
+def check_sounds(instrument: Instrument) -> None:
+    """Raise :class:`drift.errors.DriftError` when no fingering of ``instrument`` sounds in the
+    model: none has the resonance of its register below 15 kHz (:data:`GRID_LIMIT_HZ`) with the
+    bore full of the design room's air.
+
+    A bore too thin to resonate (its losses, or an input volume far larger than the bore's,
+    leave |Z_in| without extrema) or too short for its registers would otherwise give every note
+    NaN, and every mean and spread of a chart or warm-up with it. One resonance search of one
+    bore state (uniform air), cheap beside the thermal work that follows; notes of which only
+    some are out of reach keep their NaN (shown as "—").
+    """
+    notes = instrument.fingerings()
+    net = bore_network(instrument, BoreProfile.uniform(instrument.design.room()))
+    found = search_resonances(net, instrument.open_mask(notes), [n.register for n in notes],
+                              minima=instrument.excitation == "jet")
+    if any(len(r) >= n.register for n, r in zip(notes, found)):
+        return
+    x, d = instrument.stations_m[:, 0], instrument.stations_m[:, 1]
+    raise DriftError(
+        f"{instrument.source or instrument.name}: no note sounds in the model (no fingering has its register's "
+        f"resonance below {GRID_LIMIT_HZ / 1e3:g} kHz): the bore, {x[-1] * 1e3:g} mm long and {d.min() * 1e3:g} mm "
+        "at its narrowest, is too thin for its input volume or too short for its registers")
 
 
 def note_frequencies(instrument: Instrument, profile: BoreProfile, lossless: bool = False, notes=None,

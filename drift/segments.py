@@ -28,6 +28,10 @@ from drift.valves import SLIDE_LEGS
 # Acoustic segments
 # --------------------------------------------------------------------------------------------
 
+#: Shortest piece of bore cut as a segment of its own [m] (a nanometre, far below any drawing's
+#: precision): shorter pieces are merged with their neighbour (see :func:`discretise`).
+MIN_CUT_M = 1e-9
+
 
 @dataclass(frozen=True)
 class Segments:
@@ -157,6 +161,9 @@ def discretise(instrument: Instrument, max_segment_m: float = SEGMENT_LENGTH_M) 
     if instrument.excitation == "jet":
         cuts.add(inp.embouchure_position_m)
     edges = np.array(sorted(cuts))
+    # split points closer than MIN_CUT_M (a station or hole 1e-300 mm from another) would make
+    # segments whose cone matrices underflow: the nearer one gives way
+    edges = np.append(edges[:-1][np.diff(edges) > MIN_CUT_M], edges[-1])
     points = [edges[0]]
     for a, b in zip(edges[:-1], edges[1:]):
         n = max(1, math.ceil((b - a) / max_segment_m - 1e-9))
@@ -172,7 +179,7 @@ def discretise(instrument: Instrument, max_segment_m: float = SEGMENT_LENGTH_M) 
         pre_start, pre_len, pre_in, pre_out = [], [], [], []
         if lt > 0:
             pre_start.append(-(lt + lb)); pre_len.append(lt); pre_in.append(rt); pre_out.append(rt)
-        if lb > 0:
+        if lb > MIN_CUT_M:
             nb = max(1, math.ceil(lb / max_segment_m - 1e-9))
             xb = np.linspace(-lb, 0.0, nb + 1)
             rb = rt + (r0 - rt) * (xb + lb) / lb

@@ -376,6 +376,7 @@ def warmup_timeline(instrument: Instrument, room: Room, plan: Sequence[Phase] | 
     [0, 60, 120]
     """
     plan = parse_plan(plan) if isinstance(plan, str) else tuple(plan)
+    pitch.check_sounds(instrument)
     times = sample_times(plan, step_s)
     trajectory = thermal.instrument_trajectory(instrument, room, plan, breath, blowing)
     phase_of_row = np.array([trajectory.phase_of(t) for t in times])

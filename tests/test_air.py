@@ -238,6 +238,20 @@ def test_property_sources_agree_and_switch_back():
         air.set_property_source("guess")
 
 
+def test_coolprop_takes_a_trace_of_breath_in_dry_co2_free_air():
+    """Found by tests/test_properties.py: a breath fraction of 1e-131 in dry air without CO2 gave
+    fractions that the cache key rounded to zero, and CoolProp failed ("p is not a valid number").
+    The trace changes nothing measurable: the state equals the breath-free one."""
+    room = Room(293.15, 101325.0, 0.0, 0.0)
+    previous = air.set_property_source("coolprop")
+    try:
+        traced = air.air_properties(room, 3.3e-131).properties
+        clean = air.air_properties(room, 0.0).properties
+    finally:
+        air.set_property_source(previous)
+    assert float(traced.sound_speed) == pytest.approx(float(clean.sound_speed), rel=1e-12)
+
+
 def test_dry_air_without_co2_is_a_valid_state_in_both_sources():
     """CoolProp 8 cannot solve a mixture with neither CO2 nor water; drift gives it a trace of
     1e-12 there, so `drift air --rh 0 --co2 0` works in both sources and they agree."""

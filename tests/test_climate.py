@@ -194,8 +194,10 @@ def test_bad_player_files_are_named(write_toml, player, needle):
     write_toml(PLAYER_FILE.replace("0.12", "20"), "bad.toml")
     write_toml(PLAYER_FILE.replace('name = "me"', "flow_rate = 1"), "odd.toml")
     path = write_toml(f'name = "x"\n[air]\ntemperature_c = 18\n[player]\n{player}', "room.toml")
-    with pytest.raises(InputFileError, match=needle.replace("(", r"\(")):
+    with pytest.raises(InputFileError, match=needle.replace("(", r"\(")) as info:
         climate.load_climate(str(path))
+    # the climate file and its key come first, then the player file's own message
+    assert str(info.value).startswith(f"{path}: [player] player_file ")
 
 
 CHANGING = '''name = "evening"

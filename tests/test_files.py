@@ -29,7 +29,7 @@ def test_read_toml_missing_malformed_and_unreadable(tmp_path):
 @pytest.mark.parametrize("content, needle", [
     (b"name = \"\xff\xfe\"\n", "is not UTF-8 text (byte 9)"),
     (b"a = " + b"1" * 400 + b"\n", None),                       # parses; the key's check refuses it
-    (b"a = " + b"1" * 5000 + b"\n", "a number is too long to read"),
+    (b"a = " + b"1" * 5000 + b"\n", "a number too long to read"),
     (b"a = " + b"[" * 5000 + b"]" * 5000 + b"\n", "nested too deeply"),
     (b"# " + b"x" * 1_000_001 + b"\n", "is larger than 1 MB"),
 ])
@@ -135,6 +135,7 @@ nan_value = nan
 big = inf
 word = "warm"
 list = [1, 2]
+near = -30.00003
 [inner]
 depth_mm = 12.5
 [[item]]
@@ -147,7 +148,7 @@ size = "large"
 @pytest.fixture
 def top():
     return Table(tomllib.loads(TOML), "f.toml", "",
-                 ("name", "count", "flag", "empty", "nan_value", "big", "word", "list", "inner", "item"))
+                 ("name", "count", "flag", "empty", "nan_value", "big", "word", "list", "near", "inner", "item"))
 
 
 def test_numbers_are_typed_and_range_checked(top):
@@ -164,6 +165,9 @@ def test_numbers_are_typed_and_range_checked(top):
         (dict(key="flag"), "f.toml: flag must be a number, not True"),
         (dict(key="list"), "f.toml: list must be a number, not [1, 2]"),
         (dict(key="absent", required=True), "f.toml: absent is missing (a number is required)"),
+        # just outside the range: every digit, not a rounded value that looks allowed
+        (dict(key="count", low=3.00001, high=4), "f.toml: count = 3 is outside the allowed range 3.00001 to 4"),
+        (dict(key="near", low=-30, high=60), "f.toml: near = -30.00003 is outside the allowed range -30 to 60"),
     ]
     for kwargs, message in cases:
         with pytest.raises(InputFileError) as info:

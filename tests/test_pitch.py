@@ -7,12 +7,13 @@ import math
 import numpy as np
 import pytest
 
-from conftest import BUNDLED, load_pitch_reference
+from conftest import BUNDLED, assert_refused, load_pitch_reference
 from conftest import DRY_PROFILE as PROFILE
 from conftest import first_resonances as first
 from conftest import make_instrument as make
 from drift import chart, instrument, pitch, thermal
 from drift.climate import Room, load_climate
+from drift.errors import DriftError
 from drift.instrument import load_instrument
 from drift.scale import cents, note_to_midi
 from drift.bore_state import BoreProfile
@@ -172,6 +173,26 @@ def test_a_register_beyond_the_search_range_is_nan(outside, room_air):
     third = instrument.Note("C8", (), 3)
     (note,) = pitch.note_frequencies(inst, PROFILE, lossless=True, notes=[third])
     assert math.isnan(note.frequency_hz)
+
+
+def test_a_bore_where_no_note_sounds_is_refused_before_the_work(cli, write_toml):
+    # Behaviour, not physics: a 20 mm tube's third resonance lies above the search (test above),
+    # so a file whose only note is in that register leaves nothing to chart; with a second note in
+    # reach the first stays NaN and nothing is refused.
+    third = make([[0, 10], [20, 10]], note=[{"name": "C8", "register": 3}])
+    with pytest.raises(DriftError, match="test.toml: no note sounds in the model"):
+        pitch.check_sounds(third)
+    pitch.check_sounds(make([[0, 10], [20, 10]], note=[{"name": "C8", "register": 3}, {"name": "C#8"}]))
+    # A 0.5 mm bore behind the default reed (1000 mm³ of equivalent volume; the bore holds 59 mm³)
+    # has no resonance at all: chart, warm-up, advice and retuning stop at once with one line,
+    # exit 2, and write nothing.
+    thin = write_toml('name = "thin"\nexcitation = "reed"\n[bore]\nstations_mm = [[0, 0.5], [300, 0.5]]\n'
+                      '[[note]]\nname = "C4"\n', "thin.toml")
+    for args in (["chart", thin, "--climate", "tuning-room"], ["warmup", thin, "--plan", "play:1"],
+                 ["advise", thin, "--climate", "tuning-room"],
+                 ["retune", thin, "--room-temp", "25", "--output", thin.parent / "new.toml"]):
+        assert_refused(cli(*args, code=None), f"{thin}: no note sounds", "0.5 mm at its narrowest")
+    assert not (thin.parent / "new.toml").exists()
 
 
 def test_a_bore_longer_than_the_20_hz_band_keeps_its_lowest_resonance(outside, room_air):

@@ -4,7 +4,7 @@ and the breath flow through them."""
 import numpy as np
 import pytest
 
-from conftest import REGISTER_PIPE, make_instrument, write_file
+from conftest import REGISTER_PIPE, first_resonances, make_instrument, write_file
 from drift import instrument, materials, segments
 from drift.errors import OutOfRangeError
 
@@ -83,6 +83,18 @@ def test_lip_mouthpiece_throat_and_backbore_precede_the_bore():
     first_bore = int(np.argmin(np.abs(seg.start_m)))
     assert seg.start_m[first_bore] == pytest.approx(0.0, abs=1e-12)
     assert seg.radius_out_m[first_bore - 1] == pytest.approx(0.006)
+
+
+def test_pieces_shorter_than_a_nanometre_are_merged():
+    # Found by tests/test_properties.py: a station, hole or backbore 1e-300 mm long made a cone
+    # whose transfer matrix divided by zero (a numpy warning, an error in this suite).
+    pipe = make_instrument([[0, 10], [1e-300, 12], [300, 14], [300 + 1e-13, 10], [600, 12]],
+                           holes=[{"name": "h", "position_mm": 3e-300, "diameter_mm": 2.0}])
+    lips = make_instrument([[0, 1], [50, 1]], excitation="lips", input={"backbore_length_mm": 1e-300})
+    for ins in (pipe, lips):
+        seg = segments.discretise(ins)
+        assert seg.length_m.min() > segments.MIN_CUT_M
+        assert len(first_resonances(ins, count=2)) == 2
 
 
 def test_jet_cavity_segments_end_at_the_embouchure():
