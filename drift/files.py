@@ -193,6 +193,22 @@ class Table:
             self.fail(key, f"= '{value}' is not allowed; use one of: {', '.join(choices)}")
         return value
 
+    def names(self, key: str, known, what: str) -> list[str]:
+        """A list of names (``[]`` when absent), each one of ``known`` and named once; an unknown
+        name fails with a did-you-mean suggestion or the list of ``what`` (e.g. "hole")."""
+        chosen = self.data.get(key, [])
+        if not isinstance(chosen, list) or not all(isinstance(c, str) for c in chosen):
+            self.fail(key, f"must be a list of {what} names")
+        known = list(known)
+        for name in chosen:
+            if name not in known:
+                close = difflib.get_close_matches(name, known, n=1)
+                hint = f"; did you mean '{close[0]}'?" if close else f"; {what}s: {', '.join(known) or 'none'}"
+                self.fail(key, f"names unknown {what} '{name}'{hint}")
+        if len(set(chosen)) != len(chosen):
+            self.fail(key, f"names a {what} twice")
+        return chosen
+
     def boolean(self, key: str, default: bool) -> bool:
         value = self.data.get(key, default)
         if not isinstance(value, bool):

@@ -11,7 +11,6 @@ temperatures in K. File keys carry their units (``_mm``, ``_mm3``, ``_c``, ``_pc
 from __future__ import annotations
 
 import dataclasses
-import difflib
 from dataclasses import dataclass, field
 from importlib import resources
 from pathlib import Path
@@ -415,14 +414,7 @@ def parse_instrument(data: dict, path: str | Path = "<instrument>") -> Instrumen
             note_to_midi(nname)
         except ValueError as error:
             t.fail("name", f"= '{nname}': {error}")
-        closed = t.data.get("closed", [])
-        if not isinstance(closed, list) or not all(isinstance(c, str) for c in closed):
-            t.fail("closed", "must be a list of hole names")
-        for c in closed:
-            if c not in names:
-                close = difflib.get_close_matches(c, names, n=1)
-                hint = f"; did you mean '{close[0]}'?" if close else f"; holes: {', '.join(names) or 'none'}"
-                t.fail("closed", f"names unknown hole '{c}'{hint}")
+        closed = t.names("closed", names, "hole")
         register = t.data.get("register", 1)
         if isinstance(register, bool) or not isinstance(register, int) or not 1 <= register <= 12:
             t.fail("register", f"= {short_repr(register)} must be a whole number from 1 to 12")

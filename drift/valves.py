@@ -9,7 +9,6 @@ them, naming the file and key. The played path of a note is built in :mod:`drift
 
 from __future__ import annotations
 
-import difflib
 from dataclasses import dataclass
 
 import numpy as np
@@ -97,17 +96,7 @@ def parse_slide(top: Table, stations: np.ndarray) -> Slide | None:
 
 def parse_note_path(t: Table, valves, slide) -> tuple[tuple[str, ...], float]:
     """The valves a ``[[note]]`` presses and its slide travel [m], checked."""
-    names = [v.name for v in valves]
-    pressed = t.data.get("valves", [])
-    if not isinstance(pressed, list) or not all(isinstance(c, str) for c in pressed):
-        t.fail("valves", "must be a list of valve names")
-    for v in pressed:
-        if v not in names:
-            close = difflib.get_close_matches(v, names, n=1)
-            hint = f"; did you mean '{close[0]}'?" if close else f"; valves: {', '.join(names) or 'none'}"
-            t.fail("valves", f"names unknown valve '{v}'{hint}")
-    if len(set(pressed)) != len(pressed):
-        t.fail("valves", "names a valve twice")
+    pressed = t.names("valves", [v.name for v in valves], "valve")
     travel = 0.0
     if t.has("slide_position") or t.has("slide_mm"):
         if slide is None:
