@@ -109,11 +109,17 @@ def reference_chart(instrument, climates):
 
 
 def reference_warmup(instrument, room, plan, step_s):
-    times = warmup.sample_times(warmup.parse_plan(plan), step_s)
-    trajectory = thermal.instrument_trajectory(instrument, room, warmup.parse_plan(plan))
+    """One full search per row; in a rest, the row is the first note had playing resumed then
+    (the warm-up's rows say so, :meth:`drift.thermal.Trajectory.resumed`)."""
+    phases = warmup.parse_plan(plan)
+    times = warmup.sample_times(phases, step_s)
+    trajectory = thermal.instrument_trajectory(instrument, room, phases)
     reference_hz = reference_frequencies(instrument, thermal.design_profile(instrument))
-    return np.array([cents(reference_frequencies(instrument, trajectory.state(t).profile), reference_hz)
-                     for t in times])
+
+    def profile(t):
+        resting = phases[trajectory.phase_of(t)].state == "rest"
+        return (trajectory.resumed(t) if resting else trajectory.state(t)).profile
+    return np.array([cents(reference_frequencies(instrument, profile(t)), reference_hz) for t in times])
 
 
 def timed(function):

@@ -131,7 +131,7 @@ relative_humidity_pct = 100
 BUNDLED = ("conical-reed", "cylindrical-reed", "double-reed", "duct-flute", "side-blown-flute", "slide-brass",
            "valved-brass")
 #: The bundled instruments whose warm-up the suite runs: the woodwinds. A brass warm-up costs
-#: 8.5 s (valved, eight bores: the valve combinations) to 14 s (slide, seven positions) of CPU,
+#: 10 s (valved, eight bores: the valve combinations) to 19 s (slide, seven positions) of CPU,
 #: every state searched once per bore, which would take the suite past two minutes; their
 #: warm-ups are run by hand (docs/performance.md).
 WARMED = tuple(n for n in BUNDLED if not n.endswith("brass"))
