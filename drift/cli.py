@@ -232,7 +232,7 @@ def fit_command(log_path, instrument, climate_name, plan_text, a4_hz, player_pat
     instrument file. One constant offset (the player's embouchure) is fitted with them, so that
     only the drift counts; each value is reported with its standard uncertainty.
     """
-    from drift import climate, files, fit, render
+    from drift import climate, files, fit, render, render_fit
     from drift.instrument import DEFAULT_INSTRUMENT, load_instrument
 
     check_plot(plot_path)
@@ -250,10 +250,10 @@ def fit_command(log_path, instrument, climate_name, plan_text, a4_hz, player_pat
         result = fit.fit_player(inst, room, log, plan, player, a4_hz, progress, names=(label, str(log_path)))
     finally:
         progress.close()
-    doc = render.fit_document(result)
+    doc = render_fit.fit_document(result)
     if player_path:
-        render.write_text(render.player_file_text(doc), player_path)
-    render.emit(doc, fmt, render.fit_table, render.fit_csv, output)
+        render.write_text(render_fit.player_file_text(doc), player_path)
+    render.emit(doc, fmt, render_fit.fit_table, render_fit.fit_csv, output)
     draw("fit", doc, plot_path)
 
 

@@ -16,7 +16,8 @@ from drift import render
 from drift.constants import ZERO_CELSIUS
 from drift.design import rms_cents
 from drift.errors import DriftError
-from drift.instrument import parse_instrument, to_toml
+from drift.instrument import parse_instrument
+from drift.instrument_file import to_toml
 
 SENSITIVITY_KEYS = ("cents_per_k", "cents_per_10pct_rh", "cents_per_km_altitude", "cents_per_pct_co2")
 
@@ -134,7 +135,7 @@ def retune_csv(doc: dict) -> str:
 
 
 def retuned_toml(doc: dict, instrument, source: str) -> str:
-    """The retuned instrument as instrument-file text (:func:`drift.instrument.to_toml`), with a
+    """The retuned instrument as instrument-file text (:func:`drift.instrument_file.to_toml`), with a
     header from its ``drift retune`` document saying where it came from; checked by reading it
     back (:func:`drift.instrument.parse_instrument`)."""
     header = (f"Retuned by drift retune from {source} for {_condition(doc)}.\n"

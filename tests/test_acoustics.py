@@ -294,7 +294,8 @@ def test_outer_end_correction_tends_to_the_flanged_pipe(outside):
 
 @pytest.mark.parametrize("b, a, t", HOLES)
 def test_outer_end_correction_against_dalmont_2002(outside, b, a, t):
-    # Transcription check against the formula written out above (both from memory).
+    # The model's correction against the published fit as the test writes it out above (the
+    # fit's form and coefficients from memory).
     outside.check(float(acoustics.outer_end_correction(b, a, t)), published_outer_correction(b, a, t),
                   quantity="outer end correction of an open side hole", source="Dalmont et al. (2002), as quoted "
                   "by Lefebvre & Scavone (2012) (from memory)", rel=1e-12, unit="m")

@@ -134,9 +134,9 @@ def test_fit_picture_has_its_axes(fitted_pipe):
 
 
 def test_fit_table_shows_values_and_readings(fitted_pipe):
-    from drift import render
+    from drift import render_fit
 
-    text = render.fit_table(fitted_pipe.doc)
+    text = render_fit.fit_table(fitted_pipe.doc)
     for word in ("breath flow", "breath temperature", "heat-exchange factor", "embouchure offset",
                  "RMS residual", "residual ¢", f"{fitted_pipe.doc['player']['breath_flow_l_s']:.4f}"):
         assert word in text

@@ -8,7 +8,7 @@ import numpy as np
 import pytest
 
 from conftest import BUNDLED, TWO_HOLE_PIPE
-from drift import instrument, materials, pitch, thermal
+from drift import instrument, instrument_file, materials, pitch, thermal
 from drift.errors import DriftError, InputFileError, OutOfRangeError
 
 
@@ -137,7 +137,7 @@ def test_lengthening_lowers_the_pitch(two_hole_pipe):
 
 def test_toml_round_trip(bundled_instruments):
     for ins in bundled_instruments.values():
-        again = instrument.parse_instrument(tomllib.loads(instrument.to_toml(ins)), "again")
+        again = instrument.parse_instrument(tomllib.loads(instrument_file.to_toml(ins)), "again")
         assert np.allclose(again.stations_m, ins.stations_m, atol=1e-6)
         assert again.notes == ins.notes and again.design == ins.design and again.tuning == ins.tuning
         assert [h.name for h in again.holes] == [h.name for h in ins.holes]
@@ -148,7 +148,7 @@ def test_transposition_is_read_and_written(write_toml):
     path = write_toml(TWO_HOLE_PIPE.replace('name = "pipe"', 'name = "pipe"\ntransposition_semitones = -3', 1))
     ins = instrument.load_instrument(path)
     assert ins.transposition_semitones == -3
-    assert instrument.parse_instrument(tomllib.loads(instrument.to_toml(ins))).transposition_semitones == -3
+    assert instrument.parse_instrument(tomllib.loads(instrument_file.to_toml(ins))).transposition_semitones == -3
     assert instrument.load_instrument(write_toml(TWO_HOLE_PIPE, "plain.toml")).transposition_semitones == 0
 
 

@@ -15,13 +15,13 @@ PACKAGE = Path(__file__).resolve().parent.parent / "drift"
 #: The layers from the bottom up; inside a layer, a module may import those listed before it.
 LAYERS = {
     "base": ["constants", "errors", "files"],
-    "data": ["scale", "materials", "climate", "valves", "instrument", "ensemble"],
+    "data": ["scale", "materials", "climate", "valves", "instrument", "instrument_file", "ensemble"],
     "physics": ["gas_table", "air", "heat_transfer", "acoustics", "network"],
     "segments": ["segments"],
     "thermal": ["bore_state", "heat_balance", "thermal"],
     "pitch": ["pitch"],
     "jobs": ["advice", "layout", "chart", "design", "warmup", "fit", "gig"],
-    "edge": ["render", "render_design", "notation", "sheet", "plot", "options", "cli", "__main__", "__init__"],
+    "edge": ["render", "render_fit", "render_design", "notation", "sheet", "plot", "options", "cli", "__main__", "__init__"],
 }
 ORDER = [m for modules in LAYERS.values() for m in modules]
 LAYER_OF = {m: layer for layer, modules in LAYERS.items() for m in modules}

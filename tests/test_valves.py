@@ -4,7 +4,7 @@ import tomllib
 
 import pytest
 
-from drift import instrument
+from drift import instrument, instrument_file
 from drift.errors import InputFileError
 
 #: A cylinder with two valves and a slide, and notes that use them.
@@ -53,7 +53,7 @@ def test_valves_slide_and_notes_are_read(write_toml):
     assert ins.slide.positions_m == pytest.approx((0.0, 0.04, 0.085)) and ins.slide.max_travel_m == 0.6
     assert [(n.valves, n.slide_m) for n in ins.notes] == [((), 0.0), (("v1", "v2"), 0.0), ((), 0.085),
                                                            ((), pytest.approx(0.2505))]
-    again = instrument.parse_instrument(tomllib.loads(instrument.to_toml(ins)), "again")
+    again = instrument.parse_instrument(tomllib.loads(instrument_file.to_toml(ins)), "again")
     assert again.valves == ins.valves and again.slide == ins.slide and again.notes == ins.notes
     # the tuning joint before the valves moves them and the slide with the bore beyond it
     moved = ins.with_joint_change(0.004)

@@ -16,7 +16,8 @@ import time
 from pathlib import Path
 
 from drift import layout, pitch, thermal
-from drift.instrument import parse_instrument, to_toml
+from drift.instrument import parse_instrument
+from drift.instrument_file import to_toml
 from drift.scale import cents, equal_temperament_hz
 
 OUT = Path(__file__).resolve().parent.parent / "drift" / "data" / "instruments"
