@@ -32,6 +32,9 @@ class BoreProfile:
     breath_fraction : ndarray (n,) [0-1], mole fraction of breath in the bore air
     wall_temperature_k : ndarray (n,) [K]
     breath : Breath
+    loops : tuple of (str, BoreProfile)
+        The state in each valve loop (by the valve's name), positions from the loop's start; none
+        when the loops hold the state of the bore at their valve (at rest, for example).
     """
 
     room: Room
@@ -40,6 +43,7 @@ class BoreProfile:
     breath_fraction: np.ndarray
     wall_temperature_k: np.ndarray
     breath: Breath = DEFAULT_BREATH
+    loops: tuple = ()
 
     @classmethod
     def uniform(cls, room: Room, breath_fraction: float = 0.0, breath: Breath = DEFAULT_BREATH):
@@ -89,3 +93,49 @@ class BoreProfile:
         fractions = np.stack([at(s.mole_fractions[:, i]) for i in range(5)], axis=-1)
         return air.AirState(at(s.temperature), at(s.pressure), fractions, at(s.condensed.astype(float)) > 0.5,
                         props)
+
+
+def _merge_air(base: air.AirState, mask, other: air.AirState) -> air.AirState:
+    """``other`` where ``mask`` is true, ``base`` elsewhere (arrays of one shape)."""
+    def pick(a, b):
+        return np.where(mask, b, a)
+
+    props = air.GasProperties(*(pick(getattr(base.properties, f.name), getattr(other.properties, f.name))
+                                for f in fields(air.GasProperties)))
+    return air.AirState(pick(base.temperature, other.temperature), pick(base.pressure, other.pressure),
+                        np.where(mask[..., None], other.mole_fractions, base.mole_fractions),
+                        pick(base.condensed, other.condensed), props)
+
+
+class PathProfile:
+    """A bore profile seen along a note's played path (valve loops, slide extension;
+    :class:`drift.segments.PlayedPath`): a point inside a valve loop takes the loop's own state
+    (``profile.loops``) at its distance along the loop, or, where the profile has none, the state
+    of the bore at the valve; the slide's extension takes the state of the bore at the slide;
+    every other point the state of the bore where it lies without loops."""
+
+    def __init__(self, profile: BoreProfile, path):
+        self.profile, self.path = profile, path
+        self._loops = dict(profile.loops)
+
+    def _where(self, positions_m):
+        """Positions on the bore, and for each insert with a state of its own: (mask, distance
+        along it [m], its profile)."""
+        x, inside, along = self.path.locate(positions_m)
+        own = [(inside == k, along, self._loops[name]) for k, (_, _, name) in enumerate(self.path.inserts)
+               if name in self._loops and np.any(inside == k)]
+        return x, own
+
+    def wall_temperature_at(self, positions_m):
+        x, own = self._where(positions_m)
+        t = self.profile.wall_temperature_at(x)
+        for mask, along, loop in own:
+            t = np.where(mask, loop.wall_temperature_at(along), t)
+        return t
+
+    def air_at(self, positions_m):
+        x, own = self._where(positions_m)
+        state = self.profile.air_at(x)
+        for mask, along, loop in own:
+            state = _merge_air(state, mask, loop.air_at(along))
+        return state

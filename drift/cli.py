@@ -159,8 +159,9 @@ def warmup_command(instrument, climate_name, plan_text, step_s, reference_name, 
     played and cools during rests; each row gives the drift in cents from the reference. During
     a rest a row gives where the notes would sound if playing resumed then (the wall as it has
     cooled, the bore refilled with breath). `air in` and `air out` are the air temperature [°C]
-    where the breath enters the bore and at its open end; `joint mm` how far to move the tuning
-    joint then to centre the notes (+ out, − in). The report ends with the time each
+    where the breath enters the bore and at its open end; `loop NAME` the mean air temperature
+    in each valve loop (a loop warms with the share of notes that use it); `joint mm` how far to
+    move the tuning joint then to centre the notes (+ out, − in). The report ends with the time each
     play phase takes to come within 2 cents of the steady state, when to tune and how far to
     move the joint then, and the care cautions of the climate.
     """

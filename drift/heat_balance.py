@@ -17,6 +17,7 @@ Transfer, 6th ed. Wiley (Eqs. 3.27, 8.42b).
 
 from __future__ import annotations
 
+import dataclasses
 from dataclasses import dataclass, fields
 
 import numpy as np
@@ -76,6 +77,12 @@ class _Dynamics:
     n: int
     m: int
     capacity: np.ndarray
+
+    @property
+    def parts(self) -> list:
+        """The walls in the state: [(None, the bore's wall, its segments)] (loops beside it in
+        :class:`BranchedHeatBalance`)."""
+        return [(None, self.wall, slice(0, self.n))]
 
     def derivatives(self, y, playing: bool, time_s=None) -> np.ndarray:
         """Time derivatives of the ODE state (k, n m + 2) at a time [s]: wall temperatures [K/s],
@@ -211,13 +218,13 @@ class HeatBalance(_Dynamics):
         self.flow_run = slice(self.inlet, stop)
         d = self.decay[self.flow_run]
         self.outlet_weights = np.zeros((d.size, d.size))
-        self.outlet_offset = np.zeros(d.size)
+        self.outlet_reach = np.zeros(d.size)
         for i in range(d.size):
             product = 1.0
             for j in range(i, -1, -1):
                 self.outlet_weights[i, j] = product * (1.0 - d[j])
                 product *= d[j]
-            self.outlet_offset[i] = product * self.t_in
+            self.outlet_reach[i] = product
 
     # -- pieces of the balance -----------------------------------------------------------------
 
@@ -229,7 +236,7 @@ class HeatBalance(_Dynamics):
             return x / (1.0 - x)
         return np.exp(np.interp(t, self._t_grid, self._log_r_sat))
 
-    def air_play(self, t_inner):
+    def air_play(self, t_inner, inlet=None):
         """The flowing air over inner-layer temperatures (k, n) [K], for k states at once.
 
         Segment by segment from the inlet, T_out = T_w + (T_in - T_w) exp(-NTU) with
@@ -237,6 +244,14 @@ class HeatBalance(_Dynamics):
         Eq. 8.42b), and the segment's mean air temperature T_w + (T_in - T_w)(1 - exp(-NTU))/NTU.
         Water is capped at saturation at T_out; the condensed water's latent heat goes into the
         wall.
+
+        Parameters
+        ----------
+        t_inner : array_like (k, n)
+            Inner-layer temperatures [K].
+        inlet : tuple of two arrays (k,), optional
+            Temperature [K] and water-to-dry-gas mole ratio [mol/mol] of the gas flowing in (a
+            valve loop's, :class:`BranchedHeatBalance`); default the breath's (``t_in``, ``r_in``).
 
         Returns
         -------
@@ -251,21 +266,22 @@ class HeatBalance(_Dynamics):
         if self.inlet >= n:  # no flow at all
             zero = np.zeros((k, n))
             return _AirFlow(t_mean, np.full((k, n), np.nan), zero, zero, zero, np.zeros(k))
+        t_in, r_in = (np.full((k, 1), self.t_in), self.r_in) if inlet is None else (
+            np.reshape(inlet[0], (k, 1)), np.reshape(inlet[1], (k, 1)))
         run = self.flow_run
-        t_out[:, run] = tw[:, run] @ self.outlet_weights.T + self.outlet_offset
-        t_before = np.concatenate([np.full((k, 1), self.t_in), t_out[:, run][:, :-1]], axis=1)
+        t_out[:, run] = tw[:, run] @ self.outlet_weights.T + t_in * self.outlet_reach
+        t_before = np.concatenate([t_in, t_out[:, run][:, :-1]], axis=1)
         t_mean[:, run] = tw[:, run] + (t_before - tw[:, run]) * self.mean_share[run]
-        t_up = np.concatenate([np.full((k, 1), self.t_in), t_out[:, :-1]], axis=1)
-        t_up[:, self.inlet] = self.t_in
+        t_up = np.concatenate([t_in, t_out[:, :-1]], axis=1)
+        t_up[:, self.inlet] = t_in[:, 0]
         sensible = np.where(self.flows, self.mdot_cp * (t_up - t_out), 0.0)
-        r_out = np.full((k, n), self.r_in)
-        r_out[:, self.flows] = np.minimum.accumulate(np.minimum(self.r_in, self.r_sat(t_out[:, self.flows])),
-                                                     axis=1)
-        r_up = np.concatenate([np.full((k, 1), self.r_in), r_out[:, :-1]], axis=1)
-        r_up[:, self.inlet] = self.r_in
+        r_out = np.broadcast_to(r_in, (k, n)).copy()
+        r_out[:, self.flows] = np.minimum.accumulate(np.minimum(r_in, self.r_sat(t_out[:, self.flows])), axis=1)
+        r_up = np.concatenate([np.broadcast_to(r_in, (k, 1)), r_out[:, :-1]], axis=1)
+        r_up[:, self.inlet] = np.broadcast_to(r_in, (k, 1))[:, 0]
         condensed_kg = np.where(self.flows, self.ndot_dry * (r_up - r_out), 0.0) * K.WATER_MOLAR_MASS
         latent = condensed_kg * latent_heat_condensation(t_out)
-        inflow = self.mdot_cp[self.inlet] * self.t_in
+        inflow = self.mdot_cp[self.inlet] * t_in[:, 0]
         outflow = np.sum(self.exit_share * self.mdot_in * self.cp * np.where(self.flows, t_out, 0.0), axis=1)
         return _AirFlow(t_mean, np.where(self.flows, t_out, np.nan), sensible + latent, latent, condensed_kg,
                         inflow - outflow + np.sum(latent, axis=1))
@@ -282,15 +298,16 @@ class HeatBalance(_Dynamics):
         """The room (the same at every time)."""
         return self.room
 
-    def heat_flows(self, temps, playing: bool, time_s=None) -> tuple[np.ndarray, _Balance]:
+    def heat_flows(self, temps, playing: bool, time_s=None, inlet=None) -> tuple[np.ndarray, _Balance]:
         """Net heat into every wall node [W] (k, n, m) of k states of the wall (k, n, m) [K] at
         once, and the diagnostics of the balance (arrays with a first axis of k); the room loss is
-        net of the sunshine absorbed. ``time_s`` is not used (the room does not change)."""
+        net of the sunshine absorbed. ``time_s`` is not used (the room does not change);
+        ``inlet`` as in :meth:`air_play`."""
         temps = np.asarray(temps, dtype=float)
         k = temps.shape[0]
         q = np.zeros((k, self.n, self.m))
         if playing:
-            a = self.air_play(temps[:, :, 0])
+            a = self.air_play(temps[:, :, 0], inlet)
             q[:, :, 0] += a.wall_w
             t_air, latent, cond, given, outlet = (a.air_k, a.latent_w, a.condensation_kg_s, a.breath_heat_w,
                                                   a.outlet_k)
@@ -340,13 +357,13 @@ class ChangingHeatBalance(_Dynamics):
         """The room at a time [s] (the start's when None)."""
         return self.weather.room_at(0.0 if time_s is None else float(time_s))
 
-    def heat_flows(self, temps, playing: bool, time_s=None) -> tuple[np.ndarray, _Balance]:
+    def heat_flows(self, temps, playing: bool, time_s=None, inlet=None) -> tuple[np.ndarray, _Balance]:
         """:meth:`HeatBalance.heat_flows` at a time [s], interpolated between the given rooms."""
         i, w = self.weather.bracket(0.0 if time_s is None else float(time_s))
-        q, d = self.models[i].heat_flows(temps, playing)
+        q, d = self.models[i].heat_flows(temps, playing, inlet=inlet)
         if w == 0.0:
             return q, d
-        q1, d1 = self.models[i + 1].heat_flows(temps, playing)
+        q1, d1 = self.models[i + 1].heat_flows(temps, playing, inlet=inlet)
 
         def blend(a, b):
             return a + w * (b - a)
@@ -372,10 +389,83 @@ def _kinks(weather: Weather) -> tuple[float, ...]:
     return tuple(t[i] for i in range(1, len(t)) if rates(i - 1) != rates(i))
 
 
+class BranchedHeatBalance(_Dynamics):
+    """The heat balance of a bore with valve loops beside it (:attr:`drift.segments.Wall.branches`).
+
+    The bore's own balance (:class:`HeatBalance` or :class:`ChangingHeatBalance`) is solved as
+    without loops; each loop is a wall of its own with its share of the breath flow, taking in the
+    air flowing past its valve: the air leaving the bore segment whose far edge lies nearest the
+    valve, at its temperature and with the water it still holds (the breath's, capped at
+    saturation at every outlet temperature up to there). What the loop does to the air that
+    returns to the bore is not carried on downstream (the loops hold a small share of the flow for
+    a short length; our approximation). The state is the bore's wall nodes, then each loop's.
+
+    :attr:`parts` names the bore (None) and each loop (its valve's name), with its wall and its
+    segments in the state.
+    """
+
+    def __init__(self, wall: Wall, room: Room | Weather, blowing: Blowing, breath: Breath,
+                 layers: int | None = None):
+        self.bore = heat_balance(dataclasses.replace(wall, branches=()), room, blowing, breath, layers)
+        self.loops = [heat_balance(b.wall, room, blowing, breath, self.bore.m) for b in wall.branches]
+        self.wall, self.blowing, self.breath = wall, blowing, breath
+        self.m = self.bore.m
+        sizes = [self.bore.n] + [loop.n for loop in self.loops]
+        self.n = sum(sizes)
+        edges = np.cumsum([0] + sizes)
+        self._parts = [(name, w, slice(a, b)) for name, w, a, b in
+                      zip([None] + [b.name for b in wall.branches], [wall] + [b.wall for b in wall.branches],
+                          edges[:-1], edges[1:])]
+        # Each loop takes in the air leaving the bore segment whose far edge lies nearest its valve.
+        self._valve = [int(np.argmin(np.abs(wall.edges_m[1:] - b.position_m))) for b in wall.branches]
+        self.capacity = np.concatenate([self.bore.capacity] + [loop.capacity for loop in self.loops])
+        phi = self.bore.phi_play
+        self.phi_play = np.concatenate([phi] + [np.where(b.wall.flow_fraction > 0.0, phi[i], 0.0)
+                                                for b, i in zip(wall.branches, self._valve)])
+        self.kinks_s = self.bore.kinks_s
+
+    @property
+    def parts(self) -> list:
+        return self._parts
+
+    def room_at(self, time_s=None) -> Room:
+        return self.bore.room_at(time_s)
+
+    def _inlet(self, d: _Balance, i: int, time_s):
+        """Temperature [K] and water ratio [mol/mol] (k,) of the air leaving bore segment i: the
+        breath's where no flow passes, its water capped at saturation at every outlet up to i."""
+        bore = self.bore
+        if isinstance(bore, ChangingHeatBalance):
+            bore = bore.models[bore.weather.bracket(0.0 if time_s is None else float(time_s))[0]]
+        outlet = np.where(np.isfinite(d.outlet_k[:, : i + 1]), d.outlet_k[:, : i + 1], bore.t_in)
+        return outlet[:, i], np.min(bore.r_sat(outlet), axis=1, initial=bore.r_in)
+
+    def heat_flows(self, temps, playing: bool, time_s=None) -> tuple[np.ndarray, _Balance]:
+        """Net heat into every wall node [W] (k, n, m) of the bore and its loops, and the
+        diagnostics (totals over bore and loops; arrays over the bore's segments, then each
+        loop's)."""
+        temps = np.asarray(temps, dtype=float)
+        _, _, first = self.parts[0]
+        q, d = self.bore.heat_flows(temps[:, first], playing, time_s)
+        qs, ds = [q], [d]
+        for loop, valve, (_, _, part) in zip(self.loops, self._valve, self.parts[1:]):
+            inlet = self._inlet(d, valve, time_s) if playing else None
+            q_l, d_l = loop.heat_flows(temps[:, part], playing, time_s, inlet=inlet)
+            qs.append(q_l)
+            ds.append(d_l)
+        return np.concatenate(qs, axis=1), _Balance(
+            np.concatenate([b.air_k for b in ds], axis=1), sum(b.breath_heat_w for b in ds),
+            sum(b.room_loss_w for b in ds), sum(b.latent_w for b in ds), sum(b.condensation_kg_s for b in ds),
+            np.concatenate([b.condensing for b in ds], axis=1), np.concatenate([b.outlet_k for b in ds], axis=1))
+
+
 def heat_balance(wall: Wall, room: Room | Weather, blowing: Blowing, breath: Breath,
                  layers: int | None = None):
     """The heat balance of a wall in a fixed room (:class:`HeatBalance`), or in weather that
-    changes (:class:`ChangingHeatBalance`; a weather of one room is the fixed room)."""
+    changes (:class:`ChangingHeatBalance`; a weather of one room is the fixed room); with valve
+    loops beside it, :class:`BranchedHeatBalance`."""
+    if wall.branches:
+        return BranchedHeatBalance(wall, room, blowing, breath, layers)
     if isinstance(room, Weather):
         if len(room.rooms) == 1:
             room = room.rooms[0]

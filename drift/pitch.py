@@ -28,8 +28,8 @@ from drift.constants import SEGMENT_LENGTH_M
 from drift.errors import DriftError
 from drift.instrument import Instrument, Note
 from drift.scale import cents, equal_temperament_hz
-from drift.segments import PlayedPath, expanded_segments, played_path
-from drift.bore_state import BoreProfile
+from drift.segments import expanded_segments, played_path
+from drift.bore_state import BoreProfile, PathProfile
 
 # --------------------------------------------------------------------------------------------
 # Resonance search
@@ -315,22 +315,6 @@ def bore_network(instrument: Instrument, profile: BoreProfile, lossless: bool = 
     segs = expanded_segments(instrument, profile.wall_temperature_at, max_segment_m)
     state = profile.air_at(np.clip(segs.midpoints_m, 0.0, None))
     return Network(segs, state.properties, lossless=lossless, radiation=radiation)
-
-
-class PathProfile:
-    """A bore profile seen along a note's played path (valve loops, slide extension): the air
-    and wall at a point of the path are those of the profile where the point lies on the bore
-    without loops (:meth:`drift.segments.PlayedPath.open_position`), so a loop in use holds the
-    state of the bore at its valve, and a loop not in use is not in the path."""
-
-    def __init__(self, profile: BoreProfile, path: PlayedPath):
-        self.profile, self.path = profile, path
-
-    def wall_temperature_at(self, positions_m):
-        return self.profile.wall_temperature_at(self.path.open_position(positions_m))
-
-    def air_at(self, positions_m):
-        return self.profile.air_at(self.path.open_position(positions_m))
 
 
 def played_paths(instrument: Instrument, notes, profile: BoreProfile) -> list:

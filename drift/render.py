@@ -193,7 +193,7 @@ def resonances_document(found, warnings=()) -> dict:
 def warmup_document(w, cautions=()) -> dict:
     """A :class:`drift.warmup.Warmup` and the climate's care cautions
     (:class:`drift.advice.Caution`) as the JSON document of ``drift warmup``."""
-    rows, bore_rows = [], []
+    rows, bore_rows, loop_rows = [], [], []
     joints = [None] * len(w.times_s) if w.joint_m is None else [float(j) * 1e3 for j in w.joint_m]
     for t, state, freqs, drift, joint in zip(w.times_s, w.states, w.frequencies_hz, w.drift_cents, joints):
         minute = round(float(t) / 60.0, 6)
@@ -206,6 +206,7 @@ def warmup_document(w, cautions=()) -> dict:
                               "air_temperature_c": float(ta) - ZERO_CELSIUS,
                               "wall_temperature_c": float(tw) - ZERO_CELSIUS,
                               "breath_fraction": float(phi)})
+        loop_rows += [{"minute": minute, "state": state.phase, **r} for r in _loop_means(p)]
     return {
         "instrument": w.instrument,
         "climate": w.climate,
@@ -214,8 +215,10 @@ def warmup_document(w, cautions=()) -> dict:
         "tolerance_cents": w.tolerance_cents,
         "rows": rows,
         "bore": bore_rows,
+        "loops": loop_rows,
         "steady": [{"note": n, "frequency_hz": float(f), "drift_cents": float(d)}
                    for n, f, d in zip(w.notes, w.steady_hz, w.steady_drift_cents)],
+        "steady_loops": _loop_means(w.steady.profile),
         "settle": [{"phase": i + 1, "start_minute": s / 60.0,
                     "settled_minute": None if t is None else t / 60.0,
                     "minutes_to_settle": None if t is None else (t - s) / 60.0}
@@ -230,6 +233,13 @@ def warmup_document(w, cautions=()) -> dict:
         "cautions": [{"climate": c.climate, "topic": c.topic, "text": c.text} for c in cautions],
         "care_note": advice.DEFER if cautions else None,
     }
+
+
+def _loop_means(profile) -> list[dict]:
+    """Mean air and wall temperature [°C] and breath fraction in each valve loop of a profile."""
+    return [{"valve": name, "air_temperature_c": float(p.temperature_k.mean()) - ZERO_CELSIUS,
+             "wall_temperature_c": float(p.wall_temperature_k.mean()) - ZERO_CELSIUS,
+             "breath_fraction": float(p.breath_fraction.mean())} for name, p in profile.loops]
 
 
 # --------------------------------------------------------------------------------------------
@@ -436,21 +446,25 @@ def _warmup_grid(doc: dict):
 
 def warmup_table(doc: dict, all_notes: bool = False) -> str:
     """The ``drift warmup`` document as a table: minutes as rows, the air temperature where the
-    breath enters and at the open end, and the drift [cents] of a handful of notes (``all_notes``:
+    breath enters and at the open end, the mean air temperature in each valve loop, and the drift [cents] of a handful of notes (``all_notes``:
     of every note) as columns; the steady state, the settle times, when to tune and the care
     cautions under it."""
     minutes, states, drift, ends, joints = _warmup_grid(doc)
     notes = list(dict.fromkeys(r["note"] for r in doc["rows"])) if all_notes else doc["key_notes"]
     has_joint = any(j is not None for j in joints.values())
+    steady_loops = sorted(doc.get("steady_loops", []), key=lambda r: r["valve"])
+    valves = [r["valve"] for r in steady_loops]
+    loops = {(r["minute"], r["valve"]): r["air_temperature_c"] for r in doc.get("loops", [])}
     rows = []
     for m in minutes:
         first, last = ends.get(m, (math.nan, math.nan))
-        rows.append([f"{m:g}", states[m], f"{first:.1f}", f"{last:.1f}"]
+        rows.append([f"{m:g}", states[m], f"{first:.1f}", f"{last:.1f}"] + [f"{loops[(m, v)]:.1f}" for v in valves]
                     + ([_signed(joints[m])] if has_joint else []) + [_cents(drift.get((m, n))) for n in notes])
     steady = {s["note"]: s["drift_cents"] for s in doc["steady"]}
-    rows.append(["steady", "play", "", ""] + ([""] if has_joint else []) + [_cents(steady.get(n)) for n in notes])
-    headers = (["minute", "state", "air in °C", "air out °C"] + (["joint mm"] if has_joint else [])
-               + [f"{n} ¢" for n in notes])
+    rows.append(["steady", "play", "", ""] + [f"{r['air_temperature_c']:.1f}" for r in steady_loops]
+                + ([""] if has_joint else []) + [_cents(steady.get(n)) for n in notes])
+    headers = (["minute", "state", "air in °C", "air out °C"] + [f"loop {v} °C" for v in valves]
+               + (["joint mm"] if has_joint else []) + [f"{n} ¢" for n in notes])
     head = (f"{doc['instrument']} in {doc['climate']}: drift [cents] against {doc['reference']}\n")
     text = head + table(rows, headers=headers, colalign=("right", "left") + ("right",) * (len(headers) - 2))
     cold = doc.get("settle_from_cold_minutes")
@@ -491,15 +505,19 @@ def warmup_csv(doc: dict) -> str:
     """The warm-up in one CSV: a ``kind`` column, then one ``row`` line per minute and note (state,
     frequency, drift, and the joint setting that centres the row's mean drift), one ``steady``
     line per note, one ``settle`` line per play phase, a ``from_cold`` line (minutes of continuous
-    playing to settle) and a ``tune`` line (when to tune, the joint change then); cells that do
-    not apply are empty."""
+    playing to settle), a ``tune`` line (when to tune, the joint change then), and for valve loops
+    one ``loop`` line per minute and valve and one ``steady_loop`` line per valve (mean air and wall
+    temperature and breath fraction in the loop); cells that do not apply are empty."""
     rows = [{"kind": "row", **r} for r in doc["rows"]]
     rows += [{"kind": "steady", "state": "play", **s} for s in doc["steady"]]
     rows += [{"kind": "settle", **s} for s in doc["settle"]]
     rows.append({"kind": "from_cold", "minutes_to_settle": doc.get("settle_from_cold_minutes")})
     rows.append({"kind": "tune", "minute": doc.get("tune_minute"), "joint_mm": doc.get("tune_adjust_mm")})
+    rows += [{"kind": "loop", **r} for r in doc.get("loops", [])]
+    rows += [{"kind": "steady_loop", "state": "play", **r} for r in doc.get("steady_loops", [])]
     return to_csv(rows, ["kind", "minute", "state", "note", "frequency_hz", "drift_cents", "joint_mm", "phase",
-                         "start_minute", "settled_minute", "minutes_to_settle"])
+                         "start_minute", "settled_minute", "minutes_to_settle", "valve", "air_temperature_c",
+                         "wall_temperature_c", "breath_fraction"])
 
 
 # --------------------------------------------------------------------------------------------

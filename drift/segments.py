@@ -268,25 +268,34 @@ class PlayedPath:
     ----------
     instrument : Instrument
         The bore with the loops inserted (no valves, no slide, no notes): what the acoustics sees.
-    inserts : tuple of (float, float)
-        (position on the bore without loops [m], length inserted [m]) of each loop or slide
-        extension, ascending.
+    inserts : tuple of (float, float, str or None)
+        (position on the bore without loops [m], length inserted [m], the valve's name or None for
+        the slide's extension) of each loop or extension, in the order they lie along the path.
     """
 
     instrument: Instrument
-    inserts: tuple[tuple[float, float], ...]
+    inserts: tuple[tuple[float, float, str | None], ...]
+
+    def locate(self, positions_m) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+        """Where positions [m] on the path lie: their position on the bore without loops (a point
+        inside an insert maps to the insert's position, a point beyond it moves back by its
+        length), the index of the insert holding each point (-1: none) and the distance from that
+        insert's start [m] (0 outside inserts)."""
+        x = np.asarray(positions_m, dtype=float)
+        out, inside, along = x.copy(), np.full(x.shape, -1), np.zeros(x.shape)
+        offset = 0.0
+        for k, (p, length, _) in enumerate(self.inserts):
+            s = p + offset
+            here = (x > s) & (x < s + length)
+            out = np.where(here, p, np.where(x >= s + length, out - length, out))
+            inside = np.where(here, k, inside)
+            along = np.where(here, x - s, along)
+            offset += length
+        return out, inside, along
 
     def open_position(self, positions_m) -> np.ndarray:
-        """Positions [m] on the path mapped to the bore without loops: a point inside an inserted
-        loop maps to the loop's position (its air and wall are taken from there), a point beyond
-        it moves back by the loop's length."""
-        x = np.asarray(positions_m, dtype=float)
-        out, offset = x.copy(), 0.0
-        for p, length in self.inserts:
-            s = p + offset
-            out = np.where((x > s) & (x < s + length), p, np.where(x >= s + length, out - length, out))
-            offset += length
-        return out
+        """Positions [m] on the path mapped to the bore without loops (:meth:`locate`)."""
+        return self.locate(positions_m)[0]
 
 
 def played_path(instrument: Instrument, note: Note) -> PlayedPath:
@@ -303,12 +312,14 @@ def played_path(instrument: Instrument, note: Note) -> PlayedPath:
     inserts = [(v.position_m, v) for v in pressed]
     if instrument.slide is not None and note.slide_m > 0:
         inserts.append((instrument.slide.position_m, SLIDE_LEGS * note.slide_m))
-    path, lengths = base, {}
-    for p, what in sorted(inserts, key=lambda item: -item[0]):    # farthest first: positions hold
+    path, placed = base, []
+    # Farthest first, so the positions of the others hold; of two at one position, the one
+    # inserted later comes first along the path.
+    for order, (p, what) in enumerate(sorted(inserts, key=lambda item: -item[0])):
         before = path.length_m
         path = path.with_length_change(p, what) if isinstance(what, float) else _insert_loop(path, p, what)
-        lengths[p] = lengths.get(p, 0.0) + path.length_m - before
-    return PlayedPath(path, tuple(sorted(lengths.items())))
+        placed.append((p, -order, path.length_m - before, None if isinstance(what, float) else what.name))
+    return PlayedPath(path, tuple((p, length, name) for p, _, length, name in sorted(placed)))
 
 
 def _insert_loop(instrument: Instrument, position_m: float, valve) -> Instrument:
@@ -356,6 +367,8 @@ class Wall:
         enters at the first segment with a share above 0 (segments before it, such as the cavity
         between a flute's stopped end and its embouchure, see no through-flow) and the share does
         not grow from there on.
+    branches : tuple of Branch
+        Valve loops beside the bore (their own walls), fed by the air at their valve.
     """
 
     positions_m: np.ndarray
@@ -364,6 +377,7 @@ class Wall:
     thickness_m: np.ndarray
     material: Material
     flow_fraction: np.ndarray
+    branches: tuple["Branch", ...] = ()
 
     def __post_init__(self):
         n = np.size(self.positions_m)
@@ -422,6 +436,28 @@ class Wall:
         """Segment boundaries [m], (n + 1,)."""
         start = self.positions_m[0] - 0.5 * self.lengths_m[0]
         return start + np.concatenate([[0.0], np.cumsum(self.lengths_m)])
+
+
+@dataclass(frozen=True)
+class Branch:
+    """A valve loop beside the bore, for the heat balance: its wall, and where its air comes from.
+
+    Attributes
+    ----------
+    name : str
+        The valve's name.
+    position_m : float
+        The valve's position on the bore without loops [m]: the loop takes in the air flowing
+        there.
+    wall : Wall
+        The loop's segments, positions from the loop's start [m]; its ``flow_fraction`` is the
+        share of the breath flow that passes the loop, averaged over the notes played (the share
+        of notes that press the valve; 0: a loop never played, which stays at room temperature).
+    """
+
+    name: str
+    position_m: float
+    wall: Wall
 
 
 @dataclass(frozen=True)
@@ -539,12 +575,23 @@ def instrument_wall(instrument: Instrument, segment_length_m: float = SEGMENT_LE
     (``instrument.wall_thickness_m``) and material (``instrument.wall_material``), and the share of
     the flow reaching each segment averaged over its fingerings (:func:`flow_exits`,
     :func:`flow_fraction_from_exits`). For a jet the flow enters at the embouchure; the cavity
-    between the stopped end and the embouchure sees none."""
+    between the stopped end and the embouchure sees none. Each valve's loop is a :class:`Branch`
+    with the wall thickness at its valve and the share of fingerings that press it and blow past
+    it (notes weighted equally, as for the exits)."""
     exits = flow_exits(instrument)
     inlet = instrument.input_end.embouchure_position_m if instrument.excitation == "jet" else -math.inf
 
     def share(x):
         return np.where(x >= inlet, flow_fraction_from_exits(x, exits), 0.0)
 
-    return wall_from_stations(instrument.stations_m, instrument.wall_thickness_m,
-                              instrument.wall_material, segment_length_m, share)
+    thickness, material = instrument.wall_thickness_m, instrument.wall_material
+    notes = instrument.fingerings()
+    branches = []
+    for v in instrument.valves:
+        used = float(np.mean([v.name in n.valves and e > v.position_m for n, e in zip(notes, exits)])) \
+            if notes else 0.0
+        loop = wall_from_stations(np.array(v.loop_stations_m), thickness, material, segment_length_m,
+                                  lambda x, used=used: np.full(np.shape(x), used))
+        branches.append(Branch(v.name, v.position_m, loop))
+    wall = wall_from_stations(instrument.stations_m, thickness, material, segment_length_m, share)
+    return dataclasses.replace(wall, branches=tuple(branches))

@@ -36,6 +36,7 @@ Transfer, 6th ed. Wiley (Eqs. 3.27, 8.42b).
 from __future__ import annotations
 
 import bisect
+import dataclasses
 import math
 from dataclasses import dataclass, field
 from typing import Sequence
@@ -65,7 +66,8 @@ class ThermalState:
     profile : BoreProfile
         Air temperature, breath fraction and (mean) wall temperature at the segment centres.
     wall_k : ndarray (n, m)
-        Temperature of every wall layer [K], inner layer first.
+        Temperature of every wall layer [K], inner layer first (the bore's segments, then those
+        of each valve loop).
     breath_heat_w : float
         Heat the breath gives up in the bore at this moment [W] (sensible + latent).
     room_loss_w : float
@@ -99,12 +101,22 @@ class ThermalState:
     breath_heat_j: float = 0.0
     room_loss_j: float = 0.0
 
+    @property
+    def breath_fraction(self) -> np.ndarray:
+        """Breath fraction of every wall segment of the state [0-1]: the bore's, then each valve
+        loop's."""
+        return np.concatenate([self.profile.breath_fraction] + [p.breath_fraction for _, p in self.profile.loops])
+
 
 def _state(model: HeatBalance, time_s, phase, temps, breath_fraction, totals=(0.0, 0.0)) -> ThermalState:
     _, d = model.heat_flows(temps[None], phase == "play", time_s)
     wall_mean = np.sum(model.capacity * temps, axis=1) / np.sum(model.capacity, axis=1)
-    profile = BoreProfile(model.room_at(time_s), model.wall.positions_m.copy(), d.air_k[0],
-                          np.asarray(breath_fraction, dtype=float), wall_mean, model.breath)
+    phi = np.asarray(breath_fraction, dtype=float)
+    room = model.room_at(time_s)
+    profiles = {name: BoreProfile(room, wall.positions_m.copy(), d.air_k[0, part], phi[part], wall_mean[part],
+                                  model.breath) for name, wall, part in model.parts}
+    bore = profiles.pop(None)
+    profile = dataclasses.replace(bore, loops=tuple(profiles.items())) if profiles else bore
     return ThermalState(float(time_s), phase, profile, temps.copy(), float(d.breath_heat_w[0]),
                         float(d.room_loss_w[0]), float(d.latent_w[0]), float(d.condensation_kg_s[0]),
                         d.condensing[0], d.outlet_k[0], model.stored_j(temps, time_s), float(totals[0]),
@@ -135,7 +147,7 @@ def steady_state(wall: Wall, room: Room, blowing: Blowing, breath: Breath = DEFA
     ThermalState
         With ``time_s = inf`` and ``phase = 'play'``.
     """
-    model = HeatBalance(wall, room, blowing, breath, layers)
+    model = heat_balance(wall, room, blowing, breath, layers)
     shape = (model.n, model.m)
     nodes = model.n * model.m
     capacity = model.capacity.ravel()
@@ -268,7 +280,7 @@ class Trajectory:
             if initial.wall_k.shape != shape:
                 raise OutOfRangeError("the initial state does not belong to this wall (segments or layers differ)")
             y = initial.wall_k.ravel().copy()
-            phi = np.interp(wall.positions_m, initial.profile.positions_m, initial.profile.breath_fraction)
+            phi = initial.breath_fraction
         self.starts_s, self.ends_s, self._solutions, self._phi_start = [], [], [], []
         start = 0.0
         for index, phase in enumerate(self.plan):

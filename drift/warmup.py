@@ -71,6 +71,8 @@ class Warmup:
     joint_m : ndarray (t,) or None
         At each row, the joint change [m] (> 0 out) that would centre the notes' mean drift,
         linearised (:func:`joint_settings`); None without a joint.
+    loop_note : int or None
+        Index of the note that plays through the longest valve loops (None without valves).
     """
 
     notes: tuple[str, ...]
@@ -93,6 +95,7 @@ class Warmup:
     tune_s: float | None = None
     tune_adjust_m: float | None = None
     joint_m: np.ndarray | None = None
+    loop_note: int | None = None
 
     @property
     def steady_drift_cents(self) -> np.ndarray:
@@ -101,8 +104,8 @@ class Warmup:
 
     def key_notes(self) -> list[int]:
         """Indices of a handful of notes, in ascending pitch: the lowest, the middle and the highest
-        (by reference frequency) and the tuning note (A4 if there is one, else the note nearest
-        440 Hz)."""
+        (by reference frequency), the tuning note (A4 if there is one, else the note nearest
+        440 Hz) and the note through the longest valve loops, if any."""
         f = self.reference_hz
         valid = np.flatnonzero(np.isfinite(f))
         if valid.size == 0:
@@ -113,6 +116,8 @@ class Warmup:
             picks.add(self.notes.index("A4"))
         else:
             picks.add(int(valid[np.argmin(np.abs(np.log(f[valid] / K.A4_HZ)))]))
+        if self.loop_note is not None and np.isfinite(f[self.loop_note]):
+            picks.add(self.loop_note)
         return sorted(picks, key=lambda i: f[i])
 
 
@@ -408,9 +413,11 @@ def warmup_timeline(instrument: Instrument, room: Room, plan: Sequence[Phase] | 
     wall = instrument_wall(instrument)
     inlet = wall.positions_m[int(np.argmax(wall.flow_fraction > 0.0))]
     far = chart.name_warnings(instrument, notes, ref if at_design and breath == DEFAULT_BREATH else None)
+    loops = [sum(v.loop_length_m for v in instrument.valves if v.name in n.valves) for n in notes]
+    loop_note = int(np.argmax(loops)) if max(loops, default=0.0) > 0.0 else None
     return Warmup(labels, times, states, freqs, ref, drift, steady_hz, steady, settle, tolerance_cents,
                   tuple(plan), instrument.name, names[0], names[1], from_cold, float(inlet), far, tune_s,
-                  tune_adjust_m, joint)
+                  tune_adjust_m, joint, loop_note)
 
 
 #: Joint change that measures the pitch's slope against the joint [m].

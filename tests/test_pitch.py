@@ -399,3 +399,28 @@ def test_valved_notes_in_every_frequency_function():
     np.testing.assert_allclose(by_state[1], by_note, rtol=1e-9)
     np.testing.assert_allclose(by_search, by_note, rtol=1e-6)
     assert by_note[0] > by_note[1] > by_note[2] > by_note[3]
+
+
+def test_a_note_through_a_loop_plays_in_the_loops_own_air():
+    # Played steadily, a loop taken by a third of the notes is cooler than the bore at its valve:
+    # the notes through it sound lower than with the loop holding the bore's state there, the
+    # open note not at all; inside the loop the path reads the loop's own air.
+    from drift.bore_state import PathProfile
+    from drift.segments import played_path
+
+    ins = _valved_cylinder(("v2", "v1"), [(), ("v2",), ("v1",)])
+    profile = thermal.instrument_steady_state(ins, Room(293.15)).profile
+    loops = dict(profile.loops)
+    assert set(loops) == {"v2", "v1"}
+    at_valve = profile.air_at([ins.valves[1].position_m]).temperature[0]
+    assert np.max(loops["v1"].temperature_k) < at_valve
+    with_loops = pitch.state_frequencies([ins], [profile])[0]
+    as_bore = pitch.state_frequencies([ins], [dataclasses.replace(profile, loops=())])[0]
+    assert with_loops[0] == as_bore[0]
+    assert np.all(with_loops[1:] < as_bore[1:] - 0.01 * as_bore[1:] / 1200)   # > 0.01 cent lower
+    path = played_path(ins, ins.notes[2])
+    ((start, length, name),) = path.inserts
+    assert name == "v1"
+    along = np.linspace(0.01, 0.99, 7) * length
+    seen = PathProfile(profile, path).air_at(start + along).temperature
+    np.testing.assert_array_equal(seen, loops["v1"].air_at(along).temperature)

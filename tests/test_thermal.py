@@ -363,3 +363,86 @@ def test_played_design_profile_comes_from_the_thermal_model(bundled_instruments,
     rest = pitch.note_frequencies(ins, thermal.design_profile(ins))
     warm = design_notes["cylindrical-reed"][1]
     assert all(w.frequency_hz > r.frequency_hz for w, r in zip(warm, rest))
+
+
+# --------------------------------------------------------------------------------------------
+# Valve loops beside the bore
+# --------------------------------------------------------------------------------------------
+
+
+def looped(shares, bore_length=0.6, loop_length=0.3, valve_m=0.3, material=BRASS):
+    """A brass tube with a loop of its own diameter at ``valve_m`` for each share of the flow."""
+    from drift.segments import Branch
+
+    loops = tuple(Branch(f"v{k + 1}", valve_m, tube(material, loop_length, flow_fraction=lambda x, s=s: np.full(x.shape, s)))
+                  for k, s in enumerate(shares))
+    return dataclasses.replace(tube(material, bore_length), branches=loops)
+
+
+def humid_heat_w(t_in, w_in, t_out, mdot_da, p):
+    """Heat [W] humid air gives up from (t_in, w_in) to t_out, its water capped at saturation
+    there and the condensate leaving as liquid at t_out (CoolProp HAPropsSI, Hyland & Wexler 1983
+    as in ASHRAE RP-1485; water from IAPWS-95 through PropsSI)."""
+    import CoolProp.CoolProp as CP
+
+    h_in = CP.HAPropsSI("H", "T", t_in, "P", p, "W", w_in)
+    w_out = min(w_in, CP.HAPropsSI("W", "T", t_out, "P", p, "R", 1.0))
+    h_out = CP.HAPropsSI("H", "T", t_out, "P", p, "W", w_out)
+    h_liquid = CP.PropsSI("H", "T", t_out, "Q", 0, "Water") - CP.PropsSI("H", "T", 273.16, "Q", 0, "Water")
+    return mdot_da * (h_in - h_out - (w_in - w_out) * h_liquid)
+
+
+def test_loop_breath_heat_against_humid_air_enthalpy(outside):
+    # The bore and a loop taking half the flow at its middle: the bore's heat from the saturated
+    # breath to its exit, plus half the flow's heat from the air leaving the segment before the
+    # valve (its water capped at saturation there; the air cools along the bore) to the loop's
+    # exit, all from the independent humid-air model (CoolProp HAPropsSI).
+    import CoolProp.CoolProp as CP
+
+    wall = looped([0.5])
+    steady = thermal.steady_state(wall, ROOM, REED)
+    n, p, t_in = wall.positions_m.size, ROOM.pressure_pa, DEFAULT_BREATH.temperature_k
+    valve = int(np.argmin(np.abs(wall.edges_m[1:] - 0.3)))
+    t_valve, t_bore_out, t_loop_out = (float(steady.outlet_k[i]) for i in (valve, n - 1, -1))
+    assert t_bore_out < t_valve < t_in and ROOM.temperature_k < t_loop_out < t_valve
+    w_in = CP.HAPropsSI("W", "T", t_in, "P", p, "R", 1.0)
+    w_valve = min(w_in, CP.HAPropsSI("W", "T", t_valve, "P", p, "R", 1.0))
+    mdot_da = REED.flow_m3_s / CP.HAPropsSI("Vha", "T", t_in, "P", p, "R", 1.0) / (1.0 + w_in)
+    q = humid_heat_w(t_in, w_in, t_bore_out, mdot_da, p) + humid_heat_w(t_valve, w_valve, t_loop_out, 0.5 * mdot_da, p)
+    outside.check(steady.breath_heat_w, q,
+                  quantity="steady heat the breath gives a brass tube and a loop taking half its flow, 0.1 l/s, 20 °C",
+                  source="humid-air enthalpy from CoolProp HAPropsSI (Hyland & Wexler 1983 as in ASHRAE RP-1485; "
+                  "independent library), water's from IAPWS-95 through CoolProp PropsSI", rel=0.01, unit="W")
+    # Steady: everything the breath gives up leaves through the outer surfaces.
+    assert steady.room_loss_w == pytest.approx(steady.breath_heat_w, rel=1e-6)
+
+
+def test_loop_never_played_stays_at_room_temperature():
+    wall = looped([0.0, 0.5])
+    steady = thermal.steady_state(wall, ROOM, REED)
+    (_, unused), (_, used) = steady.profile.loops
+    assert np.all(unused.wall_temperature_k == ROOM.temperature_k)
+    assert np.all(unused.breath_fraction == 0.0)
+    assert np.all(used.wall_temperature_k > ROOM.temperature_k + 1.0)
+    later = thermal.timeline(wall, ROOM, parse_plan("play:2"), [120.0], REED)[0]
+    assert np.all(dict(later.profile.loops)["v1"].wall_temperature_k == ROOM.temperature_k)
+
+
+def test_loops_warm_with_their_share_of_the_flow_and_cool_in_a_rest():
+    # A loop played by a quarter of the notes warms more slowly than one played by three
+    # quarters, both lag the bore at their valve, and both cool in a rest.
+    wall = looped([0.25, 0.75])
+    times = np.array([30.0, 60.0, 120.0, 180.0, 240.0])
+    states = thermal.timeline(wall, ROOM, parse_plan("play:2,rest:2"), times, REED)
+
+    def mean_wall(state, name):
+        return float(np.mean(dict(state.profile.loops)[name].wall_temperature_k))
+
+    few, many = (np.array([mean_wall(s, v) for s in states]) for v in ("v1", "v2"))
+    assert np.all(np.diff(few[:3]) > 0) and np.all(np.diff(many[:3]) > 0)       # playing
+    assert np.all(np.diff(few[2:]) < 0) and np.all(np.diff(many[2:]) < 0)       # resting
+    assert np.all(few[:3] < many[:3])
+    at_valve = [float(s.profile.wall_temperature_at(0.3)) for s in states[:3]]
+    assert np.all(many[:3] < at_valve)
+    steady = thermal.steady_state(wall, ROOM, REED)
+    assert mean_wall(steady, "v1") < mean_wall(steady, "v2") < float(steady.profile.wall_temperature_at(0.3))

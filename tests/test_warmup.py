@@ -211,3 +211,42 @@ def test_joint_column_is_the_exact_joint_solve_to_one_percent(bundled_instrument
     for k, (change, _) in zip(rows, exact):
         assert abs(change) > 1e-3            # a change of some mm to check against
         assert result.joint_m[k] == pytest.approx(change, rel=0.01)
+
+
+#: A brass tube with one valve loop, played by one of its two notes.
+LOOP_TUBE = """
+name = "loop tube"
+excitation = "lips"
+material = "yellow_brass"
+[bore]
+stations_mm = [[0, 11], [900, 11], [1300, 60]]
+[[valve]]
+name = "1"
+position_mm = 300.0
+stations_mm = [[0, 11], [140, 11]]
+[[note]]
+name = "B3"
+register = 2
+[[note]]
+name = "A3"
+register = 2
+valves = ["1"]
+"""
+
+
+def test_warm_up_shows_the_valve_loop_warming(write_toml):
+    from drift import render
+
+    ins = load_instrument(write_toml(LOOP_TUBE))
+    w = warmup.warmup_timeline(ins, Room(288.15, relative_humidity=0.5), "play:1", step_s=60.0)
+    assert w.loop_note == 1 and 1 in w.key_notes()
+    doc = render.warmup_document(w)
+    loop = [r["air_temperature_c"] for r in doc["loops"]]
+    assert [r["minute"] for r in doc["loops"]] == [0, 1] and {r["valve"] for r in doc["loops"]} == {"1"}
+    (steady,) = doc["steady_loops"]
+    assert 15.0 < loop[0] < loop[1] < steady["air_temperature_c"] < 35.0
+    assert 15.0 < steady["wall_temperature_c"] < steady["air_temperature_c"]
+    lines = render.warmup_table(doc).splitlines()
+    assert "loop 1 °C" in lines[1] and f"{loop[1]:.1f}" in lines[4]
+    csv_kinds = [line.split(",")[0] for line in render.warmup_csv(doc).splitlines()[1:]]
+    assert csv_kinds.count("loop") == 2 and csv_kinds.count("steady_loop") == 1
