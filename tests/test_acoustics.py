@@ -223,6 +223,39 @@ def test_lip_mouthpiece_and_reed_volume_lower_the_resonances():
     assert np.all(reed < plain) and np.all(brass < plain)
 
 
+def test_mouthpiece_cup_against_the_lumped_cavity_at_a_closed_end(outside, room_air):
+    # A lip mouthpiece reduced to its cup (throat as wide as the bore, no throat or backbore
+    # length) on a closed-open cylinder, lossless: the cup is a compliance V / (rho c^2) at the
+    # closed end, so the peaks of the input impedance satisfy cot(k L') = k V / S with L' the
+    # length plus the open end's correction 0.6133 r (Levine & Schwinger 1948); at low
+    # frequency this is Benade's (1976, Ch. 20) rule that a mouthpiece cavity acts as a length
+    # V / S of the bore. Solved here by brentq on each branch; tolerance a tenth of the end
+    # correction's share of the frequency, as for the valve loops (tests/test_pitch.py).
+    radius, length, volume = 0.006, 1.0, 1500e-9
+    tube = [[0, 2e3 * radius], [length * 1e3, 2e3 * radius]]
+    ins = parse_instrument({"name": "cup", "excitation": "lips", "bore": {"stations_mm": tube},
+                            "input": {"cup_volume_mm3": volume * 1e9, "throat_diameter_mm": 2e3 * radius,
+                                      "throat_length_mm": 0.0, "backbore_length_mm": 0.0}}, "cup.toml")
+    found = first(ins, count=3, lossless=True)
+    c, area = float(room_air.sound_speed[0]), math.pi * radius**2
+    end = 0.6133 * radius
+
+    def peaks(extra):
+        span = length + extra
+        return np.array([brentq(lambda k: math.cos(k * span) / math.sin(k * span) - k * volume / area,
+                                (n - 1) * math.pi / span + 1e-9, (n - 0.5) * math.pi / span) * c / (2 * math.pi)
+                         for n in (1, 2, 3)])
+
+    expected = peaks(end)
+    tolerance = 0.1 * np.max(np.abs(1200 * np.log2(peaks(0.0) / expected)))
+    outside.check(found, expected, cents=tolerance, unit="Hz",
+                  quantity="peaks of a 1 m x 12 mm closed-open cylinder with a 1500 mm³ mouthpiece cup, lossless",
+                  source="cup as a compliance at the closed end, cot(kL') = kV/S (Benade 1976, Ch. 20: the "
+                         "cavity as extra length); end correction 0.6133 r (Levine & Schwinger 1948)")
+    # and the cup lowers the peaks by about V / S of extra length (Benade's rule), at the lowest
+    assert abs(cents(found[0], c / (4 * (length + end + volume / area)))) < 2.0
+
+
 def test_zwikker_kosten_against_scipy_bessel_functions(outside, room_air):
     # The propagation constant and characteristic impedance written out here from the
     # Zwikker-Kosten model as given by Keefe (1984), Eqs. 1-4 (from memory), with
