@@ -19,7 +19,7 @@ LAYERS = {
     "physics": ["gas_table", "air", "heat_transfer", "acoustics", "network"],
     "segments": ["segments"],
     "thermal": ["bore_state", "heat_balance", "thermal"],
-    "pitch": ["pitch"],
+    "pitch": ["resonance", "pitch"],
     "jobs": ["advice", "layout", "chart", "design", "warmup", "fit", "gig"],
     "edge": ["render", "render_fit", "render_design", "notation", "sheet", "plot", "options", "cli", "__main__", "__init__"],
 }

@@ -11,7 +11,7 @@ from conftest import BUNDLED, assert_refused, load_pitch_reference
 from conftest import DRY_PROFILE as PROFILE
 from conftest import first_resonances as first
 from conftest import make_instrument as make
-from drift import chart, instrument, pitch, thermal
+from drift import chart, instrument, pitch, resonance, thermal
 from drift.climate import Room, load_climate
 from drift.errors import DriftError
 from drift.instrument import load_instrument
@@ -150,7 +150,7 @@ def test_refine_extrema_on_wide_brackets(outside, room_air):
     expected = np.array([1, 3, 5]) * c / (4 * 0.6)
     spacing = c / (2 * 0.6)
     x1, x2, x3 = expected - 0.2 * spacing, expected + 0.03 * spacing, expected + 0.25 * spacing
-    found = pitch.refine_extrema(net, np.ones((3, 0), dtype=bool), x1, x2, x3)
+    found = resonance.refine_extrema(net, np.ones((3, 0), dtype=bool), x1, x2, x3)
     outside.check(found, expected, quantity="first three resonances of a 600 mm closed-open pipe of 10 mm, "
                   "lossless, ideal open end, dry air at 20 °C", source="(2n-1) c / 4L, Fletcher & Rossing (1998), "
                   "Sec. 8.2; c from drift's air layer", rel=1e-6, unit="Hz")
