@@ -245,7 +245,8 @@ def joint_changes(instrument: Instrument, profiles, reference_hz: np.ndarray, dr
     the step instead. The returned change is the last one computed; the solve stops when the
     next correction is below :data:`JOINT_XTOL_M` (1 um; the error of a secant iterate is
     of the order of that correction). All states advance together, their notes recomputed
-    in one batched search per step (:func:`drift.pitch.state_frequencies`).
+    in one batched search per step (:func:`drift.pitch.state_frequencies`), tracked from the
+    frequencies of the step before.
     """
     free = free_joint(instrument)
     no_root = OutOfRangeError(
@@ -277,7 +278,8 @@ def joint_changes(instrument: Instrument, profiles, reference_hz: np.ndarray, dr
                 ok.append(k)
             except OutOfRangeError:
                 _failed(walls[k], points[k], trial[k])
-        for k, f in zip(ok, pitch.state_frequencies(changed, [profiles[k] for k in ok])):
+        near = [points[k][-1][2] for k in ok]
+        for k, f in zip(ok, pitch.state_frequencies(changed, [profiles[k] for k in ok], near_hz=near)):
             mean = float(np.nanmean(cents(f, reference_hz))) if np.any(np.isfinite(f)) else math.nan
             if math.isfinite(mean):
                 points[k].append((trial[k], mean, f))
@@ -433,7 +435,10 @@ def drift_chart(instrument: Instrument, climates: list[Climate], reference: Clim
             progress()
     if not at_design:
         profiles.append(thermal.design_profile(instrument))
-    reference_hz, *found = pitch.state_frequencies([instrument] * len(profiles), profiles)
+    # The reference searched in full; every state (the reference again, so that a climate equal to
+    # it gives the very same numbers) tracked from there.
+    near = pitch.frequencies_hz(instrument, profiles[:1])[0]
+    reference_hz, *found = pitch.frequencies_hz(instrument, profiles, near)
     design_hz = reference_hz if at_design else found.pop()
     profiles = profiles[:len(climates) + 1]
     drifts = [cents(f, reference_hz) for f in found]

@@ -128,6 +128,7 @@ class _Evaluator:
         self.relative_humidity = relative_humidity
         self.equal_hz = np.array([equal_temperament_hz(n.name, a4_hz) for n in instrument.notes])
         self.count = 0
+        self.near_hz = None
 
     def room(self, temperature_k: float, relative_humidity: float | None = None,
              pressure_pa: float | None = None) -> Room:
@@ -144,7 +145,9 @@ class _Evaluator:
                     for r, b in zip(rooms, breaths)]
         profiles += [thermal.climate_profile(self.instrument, c) for c in climates]
         self.count += len(profiles)
-        found = pitch.frequencies_hz(self.instrument, profiles)
+        if self.near_hz is None:       # the first state searched in full, every state tracked from it
+            self.near_hz = pitch.frequencies_hz(self.instrument, profiles[:1])[0]
+        found = pitch.frequencies_hz(self.instrument, profiles, self.near_hz)
         if self.progress is not None:
             self.progress()
         return cents(found, self.equal_hz[None, :])

@@ -273,6 +273,7 @@ class LogModel:
         self.flow_ref = DEFAULT_BLOWING[instrument.excitation].flow_m3_s
         self.blowing = player.blowing(instrument.excitation)
         self.cache: dict = {}
+        self.near_hz = None
 
     def start(self) -> np.ndarray:
         """u of the player given, within :data:`BOUNDS`."""
@@ -297,7 +298,10 @@ class LogModel:
         key = u.tobytes()
         if key not in self.cache:
             path = self.trajectory(u)
-            f = pitch.frequencies_hz(self.sub, [path.state(float(t)).profile for t in self.log.times_s])
+            profiles = [path.state(float(t)).profile for t in self.log.times_s]
+            if self.near_hz is None:   # the first state searched in full, every state tracked from it
+                self.near_hz = pitch.frequencies_hz(self.sub, profiles[:1])[0]
+            f = pitch.frequencies_hz(self.sub, profiles, self.near_hz)
             played = f[np.arange(len(self.read)), self.column]
             if not np.all(np.isfinite(played)):
                 missing = sorted({n for n, v in zip(self.read, played) if not np.isfinite(v)})

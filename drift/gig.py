@@ -202,8 +202,9 @@ def _instrument_evening(instrument: Instrument, climate: Climate, plan, own_plan
         rest_profiles.append(trajectory.state(start, i - 1).profile)
         rest_profiles.extend(trajectory.resumed(start + x).profile for x in lengths)
     profiles = [s.profile for s in states]
-    design, *found = pitch.frequencies_hz(instrument, [thermal.design_profile(instrument, breath), *profiles,
-                                                       *rest_profiles])
+    design_profile = thermal.design_profile(instrument, breath)
+    near = pitch.frequencies_hz(instrument, [design_profile])[0]
+    design, *found = pitch.frequencies_hz(instrument, [design_profile, *profiles, *rest_profiles], near)
     reference_hz = design * (a4_hz / instrument.design.a4_hz)
     drifts = [cents(f, reference_hz) for f in found]
     moment_drifts = drifts[:len(marks)]

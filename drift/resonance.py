@@ -261,3 +261,68 @@ def _refine_steps(network, state, rows, x, w, minima):
             pts[r, worst], vals[r, worst], gp[r, worst] = xn, zn, gv
     out[live] = mid[live]
     return out
+
+
+#: Half-width of the window :func:`track_resonances` samples around each known frequency, in
+#: lattice steps of :data:`GRID_STEP_OCTAVES` (6: 150 cents to either side).
+TRACK_STEPS = 6
+
+
+def track_resonances(network: Network, open_rows, near_hz, minima: bool = False, state=None) -> np.ndarray:
+    """The resonance [Hz] of each fingering row that lies near a known frequency, without the grid.
+
+    Parameters
+    ----------
+    network : drift.network.Network
+        One bore state or several stacked.
+    open_rows : bool array (K, H)
+        The fingering of each query.
+    near_hz : array (K,) [Hz]
+        Where each resonance is expected: the same register found by :func:`search_resonances`
+        in a nearby state of the same bore (the same instrument warmer or cooler).
+    minima : bool
+        Minima of |Z| (jet) instead of maxima.
+    state : int array (K,), optional
+        The bore state of each query in a stacked network (default 0).
+
+    Returns
+    -------
+    ndarray (K,) [Hz]; NaN where the window does not hold exactly one extremum (the caller then
+    searches in full).
+
+    Notes
+    -----
+    |Z| is sampled at the :data:`TRACK_STEPS` points of the search's own lattice
+    20 Hz * 2^(k/48) to either side of the lattice point nearest ``near_hz`` (150 cents each way,
+    more than a bore's pitch moves between the states it is used for), and where the samples hold
+    exactly one interior extremum it is refined from its three-point bracket by
+    :func:`refine_extrema`'s steps. A full search brackets that extremum with the same lattice
+    points, so the two agree to the refinement's tolerance (0.0004 cent); the register is the
+    one of ``near_hz``, kept as long as no other extremum comes within the window.
+    """
+    near = np.asarray(near_hz, dtype=float)
+    rows = np.asarray(open_rows, dtype=bool)
+    state = np.zeros(len(near), dtype=int) if state is None else np.asarray(state, dtype=int)
+    out = np.full(len(near), np.nan)
+    ok = np.isfinite(near) & (near > 0)
+    if not np.any(ok):
+        return out
+    centre = np.round(np.log2(near[ok] / GRID_START_HZ) / GRID_STEP_OCTAVES)
+    k = centre[:, None] + np.arange(-TRACK_STEPS, TRACK_STEPS + 1)[None, :]
+    f = GRID_START_HZ * 2.0 ** (GRID_STEP_OCTAVES * k)
+    width = f.shape[1]
+    rows_ok, state_ok = rows[ok], state[ok]
+    z = network.impedance(f.ravel(), np.repeat(rows_ok, width, axis=0), paired=True,
+                          state=None if network.n_states == 1 else np.repeat(state_ok, width))
+    w = _objective(z, minima).reshape(f.shape)
+    g = np.abs(w) ** 2
+    inner = (g[:, 1:-1] < g[:, :-2]) & (g[:, 1:-1] <= g[:, 2:])
+    single = np.flatnonzero(inner.sum(axis=1) == 1)
+    if single.size:
+        i = np.argmax(inner[single], axis=1)
+        take = i[:, None] + np.arange(3)[None, :]
+        x = np.take_along_axis(f[single], take, axis=1)
+        wb = np.take_along_axis(w[single], take, axis=1)
+        found = _refine(network, state_ok[single], rows_ok[single], x, wb, minima)
+        out[np.flatnonzero(ok)[single]] = found
+    return out

@@ -253,12 +253,13 @@ def phase_pitch(pitch_at, start_s: float, times_s, tolerance_cents: float = KNOT
     return 2.0 ** pchip(grid[knots], known[knots], times)
 
 
-def plan_frequencies(instrument: Instrument, trajectory: thermal.Trajectory, times_s, progress=None) -> np.ndarray:
+def plan_frequencies(instrument: Instrument, trajectory: thermal.Trajectory, times_s, progress=None,
+                     near_hz=None) -> np.ndarray:
     """Frequencies [Hz] (t, notes) of every note at the ascending ``times_s`` [s] of a thermal
-    trajectory, phase by phase from a few full resonance searches (:func:`phase_pitch`). During a
-    rest, the frequencies are those of the first note had playing resumed then
-    (:meth:`drift.thermal.Trajectory.resumed`: the wall as it has cooled, the bore refilled with
-    breath)."""
+    trajectory, phase by phase from a few resonance searches (:func:`phase_pitch`), tracked from
+    ``near_hz`` when given (:func:`drift.pitch.frequencies_hz`). During a rest, the frequencies
+    are those of the first note had playing resumed then (:meth:`drift.thermal.Trajectory.resumed`:
+    the wall as it has cooled, the bore refilled with breath)."""
     times = np.asarray(times_s, dtype=float)
     freqs = np.empty((len(times), len(instrument.fingerings())))
     phase_of_row = np.array([trajectory.phase_of(t) for t in times])
@@ -269,8 +270,8 @@ def plan_frequencies(instrument: Instrument, trajectory: thermal.Trajectory, tim
 
         def pitch_at(ts, index=index):
             if trajectory.plan[index].state == "rest":
-                return pitch.frequencies_hz(instrument, [trajectory.resumed(t).profile for t in ts])
-            return pitch.frequencies_hz(instrument, [trajectory.state(t, index).profile for t in ts])
+                return pitch.frequencies_hz(instrument, [trajectory.resumed(t).profile for t in ts], near_hz)
+            return pitch.frequencies_hz(instrument, [trajectory.state(t, index).profile for t in ts], near_hz)
 
         freqs[rows] = phase_pitch(pitch_at, trajectory.starts_s[index], times[rows], progress=progress)
     return freqs
@@ -283,7 +284,8 @@ def settle_from_cold(instrument: Instrument, room: Room, steady_hz, tolerance_ce
     ``tolerance_cents`` of its steady-state frequency ``steady_hz`` [Hz].
 
     The root of g(t) = max over notes |1200 log2(f(t) / f_steady)| - tolerance, f(t) from the
-    states of one thermal trajectory of 10 h of playing (:class:`drift.thermal.Trajectory`):
+    states of one thermal trajectory of 10 h of playing (:class:`drift.thermal.Trajectory`),
+    tracked from the steady frequencies (:func:`drift.pitch.frequencies_hz`):
     g is searched at :data:`SETTLE_GRID_S` (all those states in one stacked search) for the first
     time it is no longer positive, and the root within that bracket is refined by the Illinois
     variant of regula falsi (Dowell & Jarratt 1971, BIT 11, 168-174) to ``resolution_s``. This
@@ -296,7 +298,7 @@ def settle_from_cold(instrument: Instrument, room: Room, steady_hz, tolerance_ce
                                                blowing)
 
     def gaps(times):
-        f = pitch.frequencies_hz(instrument, [trajectory.state(float(t)).profile for t in times])
+        f = pitch.frequencies_hz(instrument, [trajectory.state(float(t)).profile for t in times], steady_hz)
         if progress is not None:
             progress(len(times))
         return np.nanmax(np.abs(cents(f, steady_hz[None, :])), axis=1) - tolerance_cents
@@ -397,7 +399,7 @@ def warmup_timeline(instrument: Instrument, room: Room, plan: Sequence[Phase] | 
     ref, steady_hz = pitch.frequencies_hz(instrument, [reference, steady.profile])
     if progress is not None:
         progress(2)
-    freqs = plan_frequencies(instrument, trajectory, times, progress)
+    freqs = plan_frequencies(instrument, trajectory, times, progress, steady_hz)
     drift = cents(freqs, ref[None, :])
     steady_cents = cents(freqs, steady_hz[None, :])
     settle = []
