@@ -364,13 +364,17 @@ def retune_command(instrument, room_temp_c, rh_pct, a4_hz, at_rest, output, fmt)
 @click.option("--tolerance", "tolerance_cents", type=FiniteRange(0.0, 100.0, min_open=True),
               default=TOLERANCE_CENTS, show_default=True,
               help="In-tune threshold [cents]; a break that moves a first note further calls for retuning.")
+@click.option("--written", is_flag=True,
+              help="Name the notes on the sheet as written for each instrument (its file's "
+                   "transposition_semitones), with a line saying each one's key; JSON always carries both "
+                   "out_of_tolerance (sounding) and written_out_of_tolerance.")
 @click.option("--format", "fmt", type=click.Choice(["text", "json"]), default="text", show_default=True,
               help="A sheet of short lines (60 columns) or JSON.")
 @OUTPUT_OPTION
 @PLOT_OPTION
 @reports_errors
-def advise_command(instruments, ensemble_file, climate_name, plan_text, a4_hz, tolerance_cents, fmt, output,
-                   plot_path):
+def advise_command(instruments, ensemble_file, climate_name, plan_text, a4_hz, tolerance_cents, written, fmt,
+                   output, plot_path):
     """What to tell the players through an evening: one instrument or an ensemble.
 
     INSTRUMENT is a bundled instrument name or an instrument file; repeat it for an ensemble, or
@@ -408,7 +412,7 @@ def advise_command(instruments, ensemble_file, climate_name, plan_text, a4_hz, t
     finally:
         progress.close()
     doc = sheet.gig_document(result)
-    write_text(to_json(doc) if fmt == "json" else sheet.gig_sheet(doc), output)
+    write_text(to_json(doc) if fmt == "json" else sheet.gig_sheet(doc, written), output)
     draw("advise", doc, plot_path)
 
 

@@ -58,6 +58,9 @@ class Standing:
         Why the joint cannot centre the notes.
     has_joint : bool
         Whether the instrument has a tuning joint at all.
+    transposition_semitones : int
+        The instrument's written minus sounding pitch [semitones] (0 at concert pitch), for
+        naming its notes as written.
     """
 
     instrument: str
@@ -69,6 +72,7 @@ class Standing:
     spread_cents: float
     warning: str | None = None
     has_joint: bool = True
+    transposition_semitones: int = 0
 
 
 @dataclass(frozen=True)
@@ -286,7 +290,8 @@ def plan_gig(instruments, climate: Climate, plan=GIG_PLAN, a4_hz: float | None =
         standings = [Standing(name, s[k].mean_drift_cents, s[k].adjust_m,
                               s[k].adjust_m is not None and s[k].warning is None,
                               float(s[k].mean_drift_cents - centre), list(s[k].out_of_tolerance),
-                              s[k].residual_spread_cents, s[k].warning, inst.tuning is not None)
+                              s[k].residual_spread_cents, s[k].warning, inst.tuning is not None,
+                              inst.transposition_semitones)
                      for name, s, inst in zip(labels, per_instrument, instruments)]
         high, low = int(np.argmax(means)), int(np.argmin(means))
         moments.append(GigMoment(t, label, weather.room_at(t), standings, float(means[high] - means[low]),

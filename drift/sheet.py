@@ -1,5 +1,10 @@
 """The gig plan's documents: the JSON document of ``drift advise`` and its text sheet, short
 lines that read on a phone (at most :data:`SHEET_WIDTH` columns). Nothing here computes physics.
+
+Notes are named by their sounding pitch; the JSON gives each instrument's
+``transposition_semitones`` and ``written_out_of_tolerance`` beside ``out_of_tolerance``, and the
+sheet shows the written names on request (``drift advise --written``), as
+:mod:`drift.notation` does for the other documents.
 """
 
 from __future__ import annotations
@@ -8,6 +13,7 @@ import textwrap
 
 from drift import advice
 from drift.constants import ZERO_CELSIUS
+from drift.scale import key_name, written_name
 
 #: Widest line of the text sheet [characters].
 SHEET_WIDTH = 60
@@ -46,6 +52,9 @@ def gig_document(gig) -> dict:
                 "joint_reachable": s.joint_reachable,
                 "from_ensemble_cents": s.from_ensemble_cents,
                 "out_of_tolerance": s.out_of_tolerance,
+                "written_out_of_tolerance": [written_name(n, s.transposition_semitones)
+                                             for n in s.out_of_tolerance],
+                "transposition_semitones": int(s.transposition_semitones),
                 "spread_after_cents": s.spread_cents,
                 "warning": s.warning,
                 "has_joint": s.has_joint,
@@ -86,12 +95,22 @@ def _signed(value, digits=1) -> str:
     return "—" if value is None else f"{value:+.{digits}f}".replace("-", "−")
 
 
-def gig_sheet(doc: dict) -> str:
+def _keys_line(doc: dict) -> str:
+    """Which key each instrument's notes are written in (from the first moment's standings)."""
+    keys = [f"{s['instrument']} in {key_name(s['transposition_semitones'])}" if s["transposition_semitones"]
+            else f"{s['instrument']} as sounding" for s in doc["moments"][0]["instruments"]]
+    return f"Written notes: {'; '.join(keys)}."
+
+
+def gig_sheet(doc: dict, written: bool = False) -> str:
     """The text sheet of ``drift advise``: per moment the conditions and a small table (mean drift,
     joint mm, distance from the ensemble), then the advice and the care cautions; no line over
-    :data:`SHEET_WIDTH` characters."""
+    :data:`SHEET_WIDTH` characters. With ``written``, the notes still out of tolerance are named
+    as written for each instrument (``written_out_of_tolerance``), and a line under the title
+    says the key of each."""
     plan = ", ".join(f"{p['state']} {p['minutes']:g}" for p in doc["plan"])
     out = [*_wrap(f"Gig sheet: {', '.join(doc['instruments'])}", rest="  "),
+           *(_wrap(_keys_line(doc), rest="  ") if written else ()),
            *_wrap(f"Climate {doc['climate']}; A4 = {doc['a4_hz']:g} Hz; tolerance {doc['tolerance_cents']:g} cents"),
            *_wrap(f"Plan (min): {plan}"),
            "Cents: mean drift, + sharp. Joint mm: + out, − in;",
@@ -111,7 +130,8 @@ def gig_sheet(doc: dict) -> str:
             out += _wrap(f"widest gap {m['widest_gap_cents']:.1f} cents: {a} above {b}", "  ", "    ")
         for s in m["instruments"]:
             if s["out_of_tolerance"]:
-                out += _wrap(f"{s['instrument']} still out: {', '.join(s['out_of_tolerance'])}", "  ", "    ")
+                names = s["written_out_of_tolerance"] if written else s["out_of_tolerance"]
+                out += _wrap(f"{s['instrument']} still out: {', '.join(names)}", "  ", "    ")
     out += ["", "ADVICE"]
     for line in doc["advice"]:
         out += _wrap(line, "- ")

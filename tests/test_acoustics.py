@@ -6,6 +6,7 @@ import numpy as np
 import pytest
 from hypothesis import given, settings, strategies as st
 from scipy import special
+from scipy.integrate import solve_ivp
 from scipy.optimize import brentq
 
 from conftest import DRY_PROFILE as PROFILE
@@ -74,6 +75,82 @@ def test_truncated_cone_resonances(outside, room_air):
     expected = np.array(roots) * c / (2 * np.pi)
     outside.check(f, expected, quantity="first five resonances of a lossless truncated cone closed at its narrow end",
                   source="tan kL = -k x1, Fletcher & Rossing (1998), Eq. 8.48", cents=0.01, unit="Hz")
+
+
+def _bessel_horn(eps, length_to_input_m, length_to_bell_m, input_radius_m, count):
+    """Stations [[mm, mm], ...] of a Bessel horn a(x) = a_in (x / x_in)^(-eps), x the distance from
+    the horn's singular point beyond the bell, drawn from the input (x = x_in) to the bell
+    (x = x_b) through ``count`` + 1 points spaced geometrically in x (equal ratios: short pieces
+    where the flare is strong), and the radius function a(x) [m] itself."""
+    x_in, x_b = length_to_input_m, length_to_bell_m
+
+    def radius(x):
+        return input_radius_m * (np.asarray(x) / x_in) ** (-eps)
+
+    x = x_in * (x_b / x_in) ** (np.arange(count + 1) / count)
+    position = np.maximum(x_in - x, 0.0)
+    return [[float(p * 1e3), float(2e3 * r)] for p, r in zip(position, radius(x))], x, radius
+
+
+def test_bessel_horn_resonances(outside, room_air):
+    # A Bessel horn, the usual model of a brass bell: radius a(x) = b x^(-eps), x measured from
+    # the horn's singular point beyond the bell. In Webster's horn equation (Webster 1919;
+    # Fletcher & Rossing 1998, Ch. 8, from memory), (1/S)(S p')' + k^2 p = 0 with S = pi a^2, the
+    # pressure is p = x^nu [A J_nu(kx) + B Y_nu(kx)], nu = eps + 1/2 (Fletcher & Rossing 1998,
+    # Ch. 8, Bessel horns, from memory; Benade 1976, from memory), and d/dz [z^nu Z_nu(z)] =
+    # z^nu Z_(nu-1)(z) (Abramowitz & Stegun 1964, Eq. 9.1.30, from memory). Closed at the narrow
+    # end x_in (p' = 0, the lips' end of a brass bore) and with p = 0 at the bell x_b (ideal open
+    # end), the resonances are the roots of
+    #     J_nu(k x_b) Y_(nu-1)(k x_in) - Y_nu(k x_b) J_(nu-1)(k x_in) = 0,
+    # evaluated here with scipy.special (an independent library). The first root is also found
+    # by integrating Webster's equation itself with scipy.integrate.solve_ivp. Lossless, as the
+    # source. Invented horn: eps = 0.7, 12 mm input, 140 mm bell, 970 mm long; lips with no cup,
+    # throat or backbore, so the input is closed.
+    # drift draws the horn as 400 cones between points on the curve; each cone is an exact
+    # solution of Webster's equation (spherical waves), so the only difference is the chords. A
+    # radius change S -> S (1 + s(x)) moves k^2 = int S p'^2 / int S p^2 (Rayleigh's quotient)
+    # by int s S p'^2 / int S p'^2 - int s S p^2 / int S p^2 relative, two weighted means of s;
+    # the chords of the convex a(x) lie above it by at most eta (relative radius), so 0 <= s <=
+    # 2 eta and the frequencies move by at most eta relative, 1731 eta cent to first order: the
+    # tolerance (0.020 cent here, computed below from the drawn stations).
+    c = float(room_air.sound_speed[0])
+    eps, x_in, x_b = 0.7, 1.0, 0.03
+    stations, x, radius = _bessel_horn(eps, x_in, x_b, 0.006, 400)
+    ins = make(stations, excitation="lips", input={"cup_volume_mm3": 0.0, "throat_length_mm": 0.0,
+                                                    "backbore_length_mm": 0.0})
+    f = first(ins, count=6, lossless=True, radiation="ideal")
+    nu = eps + 0.5
+
+    def condition(k):
+        return (special.jv(nu, k * x_b) * special.yv(nu - 1, k * x_in)
+                - special.yv(nu, k * x_b) * special.jv(nu - 1, k * x_in))
+
+    ks = np.linspace(0.5, 30.0, 3000)
+    g = condition(ks)
+    roots = [brentq(condition, a, b, xtol=1e-13) for a, b, ga, gb in zip(ks[:-1], ks[1:], g[:-1], g[1:])
+             if ga * gb < 0][:6]
+    expected = np.array(roots) * c / (2 * np.pi)
+    along = np.linspace(x_b, x_in, 100001)
+    chord = np.interp(along, x[::-1], radius(x[::-1]))
+    eta = float(np.max(chord / radius(along) - 1.0))
+    assert 0.0 < eta < 2e-5
+    tolerance = 1200.0 / math.log(2.0) * eta
+    outside.check(f, expected, quantity="first six resonances of a lossless Bessel horn (eps 0.7, 12 to 140 mm, "
+                  "970 mm) closed at its narrow end, ideal open end",
+                  source="Webster's horn equation, Bessel-horn solution x^(eps+1/2) J, Y of order eps + 1/2 "
+                  "(Fletcher & Rossing 1998, Ch. 8, from memory); roots with scipy.special",
+                  cents=tolerance, unit="Hz")
+
+    def end_pressure(k):
+        # Webster's equation p'' + (S'/S) p' + k^2 p = 0, S'/S = -2 eps / x, from the closed input
+        sol = solve_ivp(lambda s, y: [y[1], 2.0 * eps / s * y[1] - k * k * y[0]], (x_in, x_b), [1.0, 0.0],
+                        rtol=1e-10, atol=1e-12)
+        return sol.y[0, -1]
+
+    k1 = brentq(end_pressure, 0.99 * roots[0], 1.01 * roots[0], xtol=1e-11)
+    outside.check(f[0], k1 * c / (2 * np.pi), quantity="first resonance of the same Bessel horn",
+                  source="Webster (1919) horn equation integrated numerically with scipy.integrate.solve_ivp",
+                  cents=tolerance, unit="Hz")
 
 
 def test_cone_plays_near_all_harmonics_cylinder_odd_ones():

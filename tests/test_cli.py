@@ -500,7 +500,7 @@ def test_option_errors_are_one_line_and_refuse_nan(cli, args, words):
 ADVISE_KEYS = {"instruments", "climate", "moments", "advice", "cautions"}
 MOMENT_KEYS = {"minute", "label", "instruments", "widest_gap_cents"}
 STANDING_KEYS = {"instrument", "mean_drift_cents", "adjust_mm", "joint_reachable", "from_ensemble_cents",
-                 "out_of_tolerance"}
+                 "out_of_tolerance", "written_out_of_tolerance", "transposition_semitones"}
 
 
 @pytest.fixture(scope="module")
@@ -543,6 +543,29 @@ def test_advise_sheet_reads_on_a_phone(advised):
     assert max(len(line) for line in text.splitlines()) <= 60
     assert "AFTER WARM-UP, minute 2" in text and "CARE (common practice)" in text
     assert "nan" not in text.lower()
+
+
+def test_advise_written_names_for_a_transposing_instrument(cli, write_toml, two_hole_pipe):
+    # A duo of the test pipe in B-flat (transposition_semitones = 2) and at concert pitch, with a
+    # tolerance so tight that both notes stay out. A part for an instrument in B-flat is written
+    # a major second above the sound (common practice): sounding D3, E3 are written E3, F#3.
+    from drift import sheet
+
+    bb = write_toml(TWO_HOLE_PIPE.replace('name = "pipe"', 'name = "bb pipe"\ntransposition_semitones = 2', 1),
+                    "bb.toml")
+    args = ["advise", bb, two_hole_pipe, "--climate", "tuning-room", "--plan", "play:1", "--tolerance", "0.01"]
+    doc = json.loads(cli(*args, "--format", "json").stdout)
+    for m in doc["moments"]:
+        bb_pipe, pipe = m["instruments"]
+        assert (bb_pipe["transposition_semitones"], pipe["transposition_semitones"]) == (2, 0)
+        assert bb_pipe["out_of_tolerance"] == pipe["out_of_tolerance"] == ["D3", "E3"]
+        assert bb_pipe["written_out_of_tolerance"] == ["E3", "F#3"]
+        assert pipe["written_out_of_tolerance"] == ["D3", "E3"]
+    text = cli(*args, "--written").stdout
+    assert text == sheet.gig_sheet(doc, written=True)
+    assert "Written notes: bb pipe in Bb; pipe as sounding." in text.splitlines()[1]
+    assert "  bb pipe still out: E3, F#3" in text and "  pipe still out: D3, E3" in text
+    assert "bb pipe still out: D3, E3" in sheet.gig_sheet(doc) and "Written notes" not in sheet.gig_sheet(doc)
 
 
 @pytest.mark.parametrize("args, words", [
