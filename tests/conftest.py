@@ -130,11 +130,9 @@ relative_humidity_pct = 100
 #: The bundled instruments.
 BUNDLED = ("conical-reed", "cylindrical-reed", "double-reed", "duct-flute", "side-blown-flute", "slide-brass",
            "valved-brass")
-#: The bundled instruments whose warm-up the suite runs: the woodwinds. A brass warm-up costs
-#: 10 s (valved, eight bores: the valve combinations) to 19 s (slide, seven positions) of CPU,
-#: every state searched once per bore, which would take the suite past two minutes; their
-#: warm-ups are run by hand (docs/performance.md).
-WARMED = tuple(n for n in BUNDLED if not n.endswith("brass"))
+#: The bundled instruments whose warm-up the suite runs: all of them (a brass warm-up costs about
+#: 4 to 5 s of CPU, its valve loops' heat balance and its played paths included).
+WARMED = BUNDLED
 #: The plan of the shared warm-ups of the bundled instruments: a rise, then a rest.
 WARMUP_PLAN = "play:8,rest:3"
 
