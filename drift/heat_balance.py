@@ -1,8 +1,9 @@
 """The heat balance of a played bore: breath, bore air and wall, in a room that may change in time.
 
 :class:`HeatBalance` holds the conductances, capacities and gas properties of one wall in one room
-and gives the net heat into every wall node for any wall temperatures (the right-hand side of the
-ODE that :mod:`drift.thermal` integrates, and the residual of its steady state).
+(with the walls of its valve loops beside it) and gives the net heat into every wall node for any
+wall temperatures (the right-hand side of the ODE that :mod:`drift.thermal` integrates, and the
+residual of its steady state).
 :class:`ChangingHeatBalance` does the same in a room that changes in time (:class:`drift.climate.Weather`).
 Outdoors, the sunshine absorbed by the outer surface heats the wall
 (:func:`drift.heat_transfer.absorbed_sunshine`) and the wind adds to the air speed of the outside
@@ -17,7 +18,6 @@ Transfer, 6th ed. Wiley (Eqs. 3.27, 8.42b).
 
 from __future__ import annotations
 
-import dataclasses
 from dataclasses import dataclass, fields
 
 import numpy as np
@@ -78,12 +78,6 @@ class _Dynamics:
     m: int
     capacity: np.ndarray
 
-    @property
-    def parts(self) -> list:
-        """The walls in the state: [(None, the bore's wall, its segments)] (loops beside it in
-        :class:`BranchedHeatBalance`)."""
-        return [(None, self.wall, slice(0, self.n))]
-
     def derivatives(self, y, playing: bool, time_s=None) -> np.ndarray:
         """Time derivatives of the ODE state (k, n m + 2) at a time [s]: wall temperatures [K/s],
         then the rates of the two heat totals [W] (breath heat given up, heat lost to the room)."""
@@ -126,7 +120,16 @@ class _Dynamics:
 
 class HeatBalance(_Dynamics):
     """Precomputed conductances, capacities and gas properties of one wall in one room (its sun
-    and wind included)."""
+    and wind included).
+
+    A wall with valve loops (:attr:`drift.segments.Wall.branches`) is balanced with them in one
+    state: the bore's segments, then each loop's (``parts`` names them: None for the bore, the
+    valve's name for a loop, with its wall and its slice of the segments). A loop carries its
+    share of the breath flow and takes in the air leaving the bore segment whose far edge lies
+    nearest its valve, at that temperature and with the water it still holds there; what the loop
+    does to the air returning to the bore is not carried on downstream (the loops hold a share of
+    the flow over a short length; our approximation). No heat is conducted between the walls.
+    """
 
     #: Times [s] where the heat flows change slope in time (none: the room does not change).
     kinks_s: tuple = ()
@@ -137,11 +140,23 @@ class HeatBalance(_Dynamics):
         m = _auto_layers(wall) if layers is None else int(layers)
         if m < 1:
             raise OutOfRangeError("the wall needs at least one radial layer")
-        self.n, self.m = n, m = wall.positions_m.size, m
-        shells = wall.shells(m)
-        self.capacity, self.g_radial, self.g_axial = shells.capacity_j_k, shells.radial_w_k, shells.axial_w_k
-        self.r_inner, self.r_outer = shells.inner_k_w, shells.outer_k_w
-        self.outer_area, self.outer_diameter = shells.outer_area_m2, shells.outer_diameter_m
+        # The bore's segments, then each valve loop's (wall.branches): one state, no conduction
+        # between the walls (a zero axial conductance where one ends and the next begins).
+        walls = [wall] + [b.wall for b in wall.branches]
+        sizes = [w.positions_m.size for w in walls]
+        self.n, self.m = n, m = sum(sizes), m
+        edges = np.cumsum([0] + sizes)
+        self.parts = [(name, w, slice(a, b)) for name, w, a, b in
+                      zip([None] + [b.name for b in wall.branches], walls, edges[:-1], edges[1:])]
+        shells = [w.shells(m) for w in walls]
+
+        def joined(name):
+            return np.concatenate([getattr(sh, name) for sh in shells])
+
+        self.capacity, self.g_radial = joined("capacity_j_k"), joined("radial_w_k")
+        self.g_axial = np.concatenate([np.concatenate([sh.axial_w_k, np.zeros((1, m))]) for sh in shells])[:-1]
+        self.r_inner, self.r_outer = joined("inner_k_w"), joined("outer_k_w")
+        self.outer_area, self.outer_diameter = joined("outer_area_m2"), joined("outer_diameter_m")
         self.t_room = room.temperature_k
         p = room.pressure_pa
         # Outdoors: the wind across the tube adds to its own motion; the sun heats the outer layer.
@@ -181,23 +196,43 @@ class HeatBalance(_Dynamics):
         x_sat = air.saturation_water_fraction(self._t_grid, p)
         self._log_r_sat = np.log(x_sat / (1.0 - x_sat))
 
-        # Internal convection, per segment (used while playing).
-        w = np.asarray(wall.flow_fraction, dtype=float)
-        self.inlet = int(np.argmax(w > 0.0)) if np.any(w > 0.0) and blowing.flow_m3_s > 0.0 else n
+        # Internal convection, per segment (used while playing). The bore's flow enters at its
+        # first segment with a share of the flow; a loop's flow at its first segment, from the
+        # bore segment whose far edge lies nearest its valve (its ``parent``).
+        n0 = sizes[0]
+        w0 = np.asarray(wall.flow_fraction, dtype=float)
+        blown = blowing.flow_m3_s > 0.0
+        inlet = int(np.argmax(w0 > 0.0)) if np.any(w0 > 0.0) and blown else n0
+        stop = inlet
+        while stop < n0 and w0[stop] > 0.0:
+            stop += 1
         # Breath fills the bore wherever the flow passes, and the dead-end cavity before the inlet
         # (mixed by the oscillating flow at the embouchure); beyond the last exit, room air.
-        reached = w > 0.0
-        reached[: self.inlet] = True
-        self.phi_play = np.where(reached, phi, 0.0) if blowing.flow_m3_s > 0.0 else np.zeros(n)
+        reached = w0 > 0.0
+        reached[:inlet] = True
+        phi_bore = np.where(reached, phi, 0.0) if blown else np.zeros(n0)
+        share = [np.where((np.arange(n0) < stop) & blown, w0, 0.0)]
+        parent, phi_play = [np.arange(n0) - 1], [phi_bore]
+        distance = [np.maximum(wall.edges_m - wall.edges_m[min(inlet, n0 - 1)], 0.0)]
+        parent[0][min(inlet, n0 - 1)] = -1
+        for b, part in zip(wall.branches, self.parts[1:]):
+            valve = int(np.argmin(np.abs(wall.edges_m[1:] - b.position_m)))
+            fed = inlet <= valve < stop
+            w = np.asarray(b.wall.flow_fraction, dtype=float) if fed else np.zeros(part[2].stop - part[2].start)
+            share.append(w)
+            parent.append(np.concatenate([[valve], np.arange(part[2].start, part[2].stop - 1)]))
+            phi_play.append(np.where(w > 0.0, phi_bore[valve], 0.0))
+            distance.append(b.wall.edges_m - b.wall.edges_m[0])
+        w = np.concatenate(share)
+        self.parent = np.concatenate(parent)
+        self.phi_play = np.concatenate(phi_play)
         self.mdot = w * self.mdot_in
         self.ndot_dry = w * self.ndot_dry_in
         self.mdot_cp = self.mdot * self.cp
-        self.exit_share = w - np.append(w[1:], 0.0)          # flow leaving after each segment
         self.flows = self.mdot > 0.0
-        first = min(self.inlet, n - 1)
-        ua = pipe_conductance(np.maximum(wall.edges_m - wall.edges_m[first], 0.0), self.mdot,
-                              2.0 * wall.inner_radius_m, self.cp, self.k_gas, self.mu_gas,
-                              self.pr_gas) * blowing.heat_transfer_factor
+        ua = np.concatenate([pipe_conductance(x, self.mdot[part], 2.0 * wl.inner_radius_m, self.cp, self.k_gas,
+                                              self.mu_gas, self.pr_gas) for x, (_, wl, part) in zip(distance, self.parts)])
+        ua *= blowing.heat_transfer_factor
         # Convection in series with the conduction to the first layer's mid-radius.
         ua_eff = np.zeros(n)
         ua_eff[self.flows] = 1.0 / (1.0 / ua[self.flows] + self.r_inner[self.flows])
@@ -208,23 +243,27 @@ class HeatBalance(_Dynamics):
         self.mean_share = np.ones(n)
         big = self.ntu > 1e-12
         self.mean_share[big] = (1.0 - self.decay[big]) / self.ntu[big]
-        # The flow passes segments inlet, inlet + 1, ... up to the first without flow (the share
-        # does not grow). Over them T_out,i = d_i T_out,i-1 + (1 - d_i) T_w,i with T_out,inlet-1 =
-        # T_in, a linear recurrence: T_out = W T_w + T_in D with W_ij = (1 - d_j) prod_{j<l<=i} d_l
-        # and D_i = prod_{l<=i} d_l, built here once (products only, no division).
-        stop = self.inlet
-        while stop < n and self.flows[stop]:
-            stop += 1
-        self.flow_run = slice(self.inlet, stop)
-        d = self.decay[self.flow_run]
-        self.outlet_weights = np.zeros((d.size, d.size))
-        self.outlet_reach = np.zeros(d.size)
-        for i in range(d.size):
-            product = 1.0
-            for j in range(i, -1, -1):
-                self.outlet_weights[i, j] = product * (1.0 - d[j])
-                product *= d[j]
-            self.outlet_reach[i] = product
+        # Over the segments with flow (each after its parent), T_out,s = d_s T_out,parent + (1 - d_s)
+        # T_w,s with T_out of the inlet's parent = T_in: a linear recurrence, T_out = W T_w + T_in v,
+        # built here once (products only, no division). The runs of segments with flow (the bore's,
+        # then each loop's) are kept for the water, which is capped run by run.
+        self.order = order = np.flatnonzero(self.flows)
+        index = np.full(n, -1)
+        index[order] = np.arange(order.size)
+        self.outlet_weights = np.zeros((order.size, order.size))
+        self.outlet_reach = np.zeros(order.size)
+        for k, seg in enumerate(order):
+            d, up = self.decay[seg], index[self.parent[seg]] if self.parent[seg] >= 0 else -1
+            if up >= 0:
+                self.outlet_weights[k] = d * self.outlet_weights[up]
+                self.outlet_reach[k] = d * self.outlet_reach[up]
+            else:
+                self.outlet_reach[k] = d
+            self.outlet_weights[k, k] += 1.0 - d
+        # A run starts where a segment's parent is not the segment before it in the order.
+        self.up = self.parent[order]
+        starts = np.flatnonzero(self.up != np.concatenate([[-2], order[:-1]]))
+        self.runs = [slice(a, b) for a, b in zip(starts, np.append(starts[1:], order.size))]
 
     # -- pieces of the balance -----------------------------------------------------------------
 
@@ -236,22 +275,15 @@ class HeatBalance(_Dynamics):
             return x / (1.0 - x)
         return np.exp(np.interp(t, self._t_grid, self._log_r_sat))
 
-    def air_play(self, t_inner, inlet=None):
+    def air_play(self, t_inner):
         """The flowing air over inner-layer temperatures (k, n) [K], for k states at once.
 
-        Segment by segment from the inlet, T_out = T_w + (T_in - T_w) exp(-NTU) with
-        NTU = UA / (mdot cp) (uniform wall temperature over a segment; Incropera et al. 2007,
-        Eq. 8.42b), and the segment's mean air temperature T_w + (T_in - T_w)(1 - exp(-NTU))/NTU.
-        Water is capped at saturation at T_out; the condensed water's latent heat goes into the
-        wall.
-
-        Parameters
-        ----------
-        t_inner : array_like (k, n)
-            Inner-layer temperatures [K].
-        inlet : tuple of two arrays (k,), optional
-            Temperature [K] and water-to-dry-gas mole ratio [mol/mol] of the gas flowing in (a
-            valve loop's, :class:`BranchedHeatBalance`); default the breath's (``t_in``, ``r_in``).
+        Segment by segment from the inlet (a valve loop from the bore segment feeding it),
+        T_out = T_w + (T_up - T_w) exp(-NTU) with NTU = UA / (mdot cp) (uniform wall temperature
+        over a segment; Incropera et al. 2007, Eq. 8.42b), T_up the air flowing in, and the
+        segment's mean air temperature T_w + (T_up - T_w)(1 - exp(-NTU))/NTU. Water is capped at
+        saturation at T_out, from the inlet along each run; the condensed water's latent heat goes
+        into the wall. The breath's heat is what the air gives the walls, sensible and latent.
 
         Returns
         -------
@@ -263,28 +295,30 @@ class HeatBalance(_Dynamics):
         t_out = tw.copy()
         t_mean = tw.copy()
         k = tw.shape[0]
-        if self.inlet >= n:  # no flow at all
+        order = self.order
+        if not order.size:  # no flow at all
             zero = np.zeros((k, n))
             return _AirFlow(t_mean, np.full((k, n), np.nan), zero, zero, zero, np.zeros(k))
-        t_in, r_in = (np.full((k, 1), self.t_in), self.r_in) if inlet is None else (
-            np.reshape(inlet[0], (k, 1)), np.reshape(inlet[1], (k, 1)))
-        run = self.flow_run
-        t_out[:, run] = tw[:, run] @ self.outlet_weights.T + t_in * self.outlet_reach
-        t_before = np.concatenate([t_in, t_out[:, run][:, :-1]], axis=1)
-        t_mean[:, run] = tw[:, run] + (t_before - tw[:, run]) * self.mean_share[run]
-        t_up = np.concatenate([t_in, t_out[:, :-1]], axis=1)
-        t_up[:, self.inlet] = t_in[:, 0]
-        sensible = np.where(self.flows, self.mdot_cp * (t_up - t_out), 0.0)
-        r_out = np.broadcast_to(r_in, (k, n)).copy()
-        r_out[:, self.flows] = np.minimum.accumulate(np.minimum(r_in, self.r_sat(t_out[:, self.flows])), axis=1)
-        r_up = np.concatenate([np.broadcast_to(r_in, (k, 1)), r_out[:, :-1]], axis=1)
-        r_up[:, self.inlet] = np.broadcast_to(r_in, (k, 1))[:, 0]
-        condensed_kg = np.where(self.flows, self.ndot_dry * (r_up - r_out), 0.0) * K.WATER_MOLAR_MASS
-        latent = condensed_kg * latent_heat_condensation(t_out)
-        inflow = self.mdot_cp[self.inlet] * t_in[:, 0]
-        outflow = np.sum(self.exit_share * self.mdot_in * self.cp * np.where(self.flows, t_out, 0.0), axis=1)
-        return _AirFlow(t_mean, np.where(self.flows, t_out, np.nan), sensible + latent, latent, condensed_kg,
-                        inflow - outflow + np.sum(latent, axis=1))
+        from_inlet = self.up < 0
+        up = np.maximum(self.up, 0)
+        t_out[:, order] = tw[:, order] @ self.outlet_weights.T + self.t_in * self.outlet_reach
+        t_up = np.where(from_inlet, self.t_in, t_out[:, up])
+        t_mean[:, order] = tw[:, order] + (t_up - tw[:, order]) * self.mean_share[order]
+        sensible = self.mdot_cp[order] * (t_up - t_out[:, order])
+        r_sat = self.r_sat(t_out[:, order])
+        r_out = np.empty((k, order.size))
+        for run in self.runs:
+            first = run.start
+            start = self.r_in if from_inlet[first] else r_out[:, np.searchsorted(order, up[first])][:, None]
+            r_out[:, run] = np.minimum.accumulate(np.minimum(start, r_sat[:, run]), axis=1)
+        r_up = np.where(from_inlet, self.r_in, r_out[:, np.searchsorted(order, up)])
+        condensed_kg = self.ndot_dry[order] * (r_up - r_out) * K.WATER_MOLAR_MASS
+        latent = condensed_kg * latent_heat_condensation(t_out[:, order])
+        wall_w, latent_w, condensation = np.zeros((k, n)), np.zeros((k, n)), np.zeros((k, n))
+        wall_w[:, order], latent_w[:, order], condensation[:, order] = sensible + latent, latent, condensed_kg
+        outlet = np.full((k, n), np.nan)
+        outlet[:, order] = t_out[:, order]
+        return _AirFlow(t_mean, outlet, wall_w, latent_w, condensation, np.sum(sensible + latent, axis=1))
 
     def outer_conductance(self, t_outer):
         """Conductance from the outer layer to the room [W/K], per segment: wall conduction in
@@ -298,16 +332,15 @@ class HeatBalance(_Dynamics):
         """The room (the same at every time)."""
         return self.room
 
-    def heat_flows(self, temps, playing: bool, time_s=None, inlet=None) -> tuple[np.ndarray, _Balance]:
+    def heat_flows(self, temps, playing: bool, time_s=None) -> tuple[np.ndarray, _Balance]:
         """Net heat into every wall node [W] (k, n, m) of k states of the wall (k, n, m) [K] at
         once, and the diagnostics of the balance (arrays with a first axis of k); the room loss is
-        net of the sunshine absorbed. ``time_s`` is not used (the room does not change);
-        ``inlet`` as in :meth:`air_play`."""
+        net of the sunshine absorbed. ``time_s`` is not used (the room does not change)."""
         temps = np.asarray(temps, dtype=float)
         k = temps.shape[0]
         q = np.zeros((k, self.n, self.m))
         if playing:
-            a = self.air_play(temps[:, :, 0], inlet)
+            a = self.air_play(temps[:, :, 0])
             q[:, :, 0] += a.wall_w
             t_air, latent, cond, given, outlet = (a.air_k, a.latent_w, a.condensation_kg_s, a.breath_heat_w,
                                                   a.outlet_k)
@@ -351,19 +384,20 @@ class ChangingHeatBalance(_Dynamics):
         first = self.models[0]
         self.wall, self.blowing, self.breath = wall, blowing, breath
         self.n, self.m, self.capacity, self.phi_play = first.n, first.m, first.capacity, first.phi_play
+        self.parts = first.parts
         self.kinks_s = _kinks(weather)
 
     def room_at(self, time_s=None) -> Room:
         """The room at a time [s] (the start's when None)."""
         return self.weather.room_at(0.0 if time_s is None else float(time_s))
 
-    def heat_flows(self, temps, playing: bool, time_s=None, inlet=None) -> tuple[np.ndarray, _Balance]:
+    def heat_flows(self, temps, playing: bool, time_s=None) -> tuple[np.ndarray, _Balance]:
         """:meth:`HeatBalance.heat_flows` at a time [s], interpolated between the given rooms."""
         i, w = self.weather.bracket(0.0 if time_s is None else float(time_s))
-        q, d = self.models[i].heat_flows(temps, playing, inlet=inlet)
+        q, d = self.models[i].heat_flows(temps, playing)
         if w == 0.0:
             return q, d
-        q1, d1 = self.models[i + 1].heat_flows(temps, playing, inlet=inlet)
+        q1, d1 = self.models[i + 1].heat_flows(temps, playing)
 
         def blend(a, b):
             return a + w * (b - a)
@@ -389,83 +423,10 @@ def _kinks(weather: Weather) -> tuple[float, ...]:
     return tuple(t[i] for i in range(1, len(t)) if rates(i - 1) != rates(i))
 
 
-class BranchedHeatBalance(_Dynamics):
-    """The heat balance of a bore with valve loops beside it (:attr:`drift.segments.Wall.branches`).
-
-    The bore's own balance (:class:`HeatBalance` or :class:`ChangingHeatBalance`) is solved as
-    without loops; each loop is a wall of its own with its share of the breath flow, taking in the
-    air flowing past its valve: the air leaving the bore segment whose far edge lies nearest the
-    valve, at its temperature and with the water it still holds (the breath's, capped at
-    saturation at every outlet temperature up to there). What the loop does to the air that
-    returns to the bore is not carried on downstream (the loops hold a small share of the flow for
-    a short length; our approximation). The state is the bore's wall nodes, then each loop's.
-
-    :attr:`parts` names the bore (None) and each loop (its valve's name), with its wall and its
-    segments in the state.
-    """
-
-    def __init__(self, wall: Wall, room: Room | Weather, blowing: Blowing, breath: Breath,
-                 layers: int | None = None):
-        self.bore = heat_balance(dataclasses.replace(wall, branches=()), room, blowing, breath, layers)
-        self.loops = [heat_balance(b.wall, room, blowing, breath, self.bore.m) for b in wall.branches]
-        self.wall, self.blowing, self.breath = wall, blowing, breath
-        self.m = self.bore.m
-        sizes = [self.bore.n] + [loop.n for loop in self.loops]
-        self.n = sum(sizes)
-        edges = np.cumsum([0] + sizes)
-        self._parts = [(name, w, slice(a, b)) for name, w, a, b in
-                      zip([None] + [b.name for b in wall.branches], [wall] + [b.wall for b in wall.branches],
-                          edges[:-1], edges[1:])]
-        # Each loop takes in the air leaving the bore segment whose far edge lies nearest its valve.
-        self._valve = [int(np.argmin(np.abs(wall.edges_m[1:] - b.position_m))) for b in wall.branches]
-        self.capacity = np.concatenate([self.bore.capacity] + [loop.capacity for loop in self.loops])
-        phi = self.bore.phi_play
-        self.phi_play = np.concatenate([phi] + [np.where(b.wall.flow_fraction > 0.0, phi[i], 0.0)
-                                                for b, i in zip(wall.branches, self._valve)])
-        self.kinks_s = self.bore.kinks_s
-
-    @property
-    def parts(self) -> list:
-        return self._parts
-
-    def room_at(self, time_s=None) -> Room:
-        return self.bore.room_at(time_s)
-
-    def _inlet(self, d: _Balance, i: int, time_s):
-        """Temperature [K] and water ratio [mol/mol] (k,) of the air leaving bore segment i: the
-        breath's where no flow passes, its water capped at saturation at every outlet up to i."""
-        bore = self.bore
-        if isinstance(bore, ChangingHeatBalance):
-            bore = bore.models[bore.weather.bracket(0.0 if time_s is None else float(time_s))[0]]
-        outlet = np.where(np.isfinite(d.outlet_k[:, : i + 1]), d.outlet_k[:, : i + 1], bore.t_in)
-        return outlet[:, i], np.min(bore.r_sat(outlet), axis=1, initial=bore.r_in)
-
-    def heat_flows(self, temps, playing: bool, time_s=None) -> tuple[np.ndarray, _Balance]:
-        """Net heat into every wall node [W] (k, n, m) of the bore and its loops, and the
-        diagnostics (totals over bore and loops; arrays over the bore's segments, then each
-        loop's)."""
-        temps = np.asarray(temps, dtype=float)
-        _, _, first = self.parts[0]
-        q, d = self.bore.heat_flows(temps[:, first], playing, time_s)
-        qs, ds = [q], [d]
-        for loop, valve, (_, _, part) in zip(self.loops, self._valve, self.parts[1:]):
-            inlet = self._inlet(d, valve, time_s) if playing else None
-            q_l, d_l = loop.heat_flows(temps[:, part], playing, time_s, inlet=inlet)
-            qs.append(q_l)
-            ds.append(d_l)
-        return np.concatenate(qs, axis=1), _Balance(
-            np.concatenate([b.air_k for b in ds], axis=1), sum(b.breath_heat_w for b in ds),
-            sum(b.room_loss_w for b in ds), sum(b.latent_w for b in ds), sum(b.condensation_kg_s for b in ds),
-            np.concatenate([b.condensing for b in ds], axis=1), np.concatenate([b.outlet_k for b in ds], axis=1))
-
-
 def heat_balance(wall: Wall, room: Room | Weather, blowing: Blowing, breath: Breath,
                  layers: int | None = None):
     """The heat balance of a wall in a fixed room (:class:`HeatBalance`), or in weather that
-    changes (:class:`ChangingHeatBalance`; a weather of one room is the fixed room); with valve
-    loops beside it, :class:`BranchedHeatBalance`."""
-    if wall.branches:
-        return BranchedHeatBalance(wall, room, blowing, breath, layers)
+    changes (:class:`ChangingHeatBalance`; a weather of one room is the fixed room)."""
     if isinstance(room, Weather):
         if len(room.rooms) == 1:
             room = room.rooms[0]

@@ -14,6 +14,9 @@ The model, in brief (equations, assumptions and sources in docs/physics.md, sect
   room by natural and forced convection (Churchill & Chu 1975; Churchill & Bernstein 1977, the
   air speed the instrument's motion and the wind) and radiation, and gaining the sunshine its
   surface absorbs outdoors.
+- **Valve loops.** Each loop is a wall of its own beside the bore, carrying the share of the
+  flow of the notes that press its valve and fed by the air flowing past it; a loop no note uses
+  stays at room temperature (:class:`drift.heat_balance.HeatBalance`).
 - **Rests.** No flow: the bore air takes the temperature of the inner wall (its own relaxation time
   is under a second), and the breath gas gives way to room air exponentially in time.
 - The wall temperatures obey an ODE solved with :func:`scipy.integrate.solve_ivp` over a play/rest
