@@ -8,7 +8,11 @@ test edits them.
 import json
 import os
 
-import numpy as np
+# One BLAS thread, as the command line runs (drift/cli.py): the bore balances are small, and a
+# second thread only spins. It takes effect where numpy is first imported after this.
+os.environ.setdefault("OPENBLAS_NUM_THREADS", "1")
+
+import numpy as np  # noqa: E402
 import pytest
 from hypothesis import settings
 

@@ -609,3 +609,19 @@ def test_warmup_carries_the_climates_cautions_and_every_note(cli, warmup_pipe, w
     header = render.warmup_table(flute, all_notes=True).splitlines()[1]
     assert all(f"{n} ¢" in header for n in {r["note"] for r in flute["rows"]})
     assert len(flute["key_notes"]) < len({r["note"] for r in flute["rows"]})
+
+
+def test_brass_instruments_through_chart_design_and_advise():
+    # The brass families run through every command a band's technician uses (their warm-ups:
+    # tests/test_warmup.py, every bundled instrument): a chart in one climate, the maker's design
+    # study, and a short evening for the two together, with written notes.
+    from conftest import invoke
+
+    chart = json.loads(invoke("chart", "slide-brass", "--climate", "winter-church", "--format", "json").stdout)
+    assert chart["instrument"] == "slide-brass" and chart["rows"]
+    assert all(math.isfinite(r["drift_cents"]) and r["drift_cents"] < 0 for r in chart["rows"])  # a cold church
+    design = json.loads(invoke("design", "valved-brass", "--format", "json").stdout)
+    assert 10.0 < design["design_temperature_c"] < 35.0
+    sheet = invoke("advise", "valved-brass", "slide-brass", "--climate", "winter-church", "--plan",
+                   "play:5,rest:2,play:5", "--written").stdout
+    assert "valved-brass" in sheet and "slide-brass" in sheet and "Bb" in sheet
