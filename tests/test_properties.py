@@ -208,6 +208,26 @@ def instrument_documents(draw):
         doc["hole"] = holes
     names = [h.get("name") for h in holes if isinstance(h.get("name"), str)]
 
+    # valves (loops drawn like the bore) and a slide, sometimes
+    valves = []
+    for i in range(draw(st.integers(0, 2)) if draw(COIN) < 0.3 else 0):
+        valve: dict = {}
+        put(valve, "name", value(st.just(f"v{i}"), st.sampled_from(["v0", "", 7])))
+        put(valve, "position_mm", value(st.floats(0.1, 0.2).map(lambda f, i=i: (f + 0.1 * i) * length),
+                                        st.floats(-10.0, 2 * length) | BAD_NUMBERS))
+        loop = draw(st.floats(1.0, 0.5 * length))
+        put(valve, "stations_mm", value(st.just([[0.0, draw(number(0.5, 40.0))], [loop, draw(number(0.5, 40.0))]]),
+                                        st.sampled_from([[[5.0, 10.0], [20.0, 10.0]], [[0.0, 10.0]], "loop", 3])))
+        valves.append(valve)
+    if valves:
+        doc["valve"] = valves
+    if draw(COIN) < 0.15:
+        top = draw(number(1.0, 1000.0, chance))
+        doc["slide"] = {"position_mm": value(st.floats(0.5, 0.6).map(lambda f: f * length)),
+                        "positions_mm": value(st.just([0.0, 10.0, 30.0]), st.sampled_from([[5.0], [], [0, 40, 20]])),
+                        "max_travel_mm": top}
+    valve_names = [v.get("name") for v in valves if isinstance(v.get("name"), str)] + ["nov"] * (chance > 0.1)
+
     notes = []
     for _ in range(draw(st.integers(0, 3))):
         note: dict = {}
@@ -219,6 +239,13 @@ def instrument_documents(draw):
             else None)
         if draw(st.booleans()):
             note["register"] = value(st.integers(1, 3), st.sampled_from([0, 13, 1.5, "1", True]))
+        if valve_names and draw(COIN) < 0.5:
+            note["valves"] = draw(st.lists(st.sampled_from(valve_names), max_size=2, unique=True))
+        if "slide" in doc and draw(COIN) < 0.5:
+            if draw(st.booleans()):
+                note["slide_position"] = value(st.integers(1, 3), st.sampled_from([0, 4, 1.5, "2"]))
+            else:
+                note["slide_mm"] = draw(number(0.0, 30.0, chance))
         notes.append(note)
     if notes:
         doc["note"] = notes
