@@ -5,6 +5,7 @@ import math
 
 import numpy as np
 import pytest
+from hypothesis import given, settings, strategies as st
 
 from conftest import REGISTER_PIPE, write_file
 from drift import air, instrument, pitch, thermal
@@ -446,3 +447,25 @@ def test_loops_warm_with_their_share_of_the_flow_and_cool_in_a_rest():
     assert np.all(many[:3] < at_valve)
     steady = thermal.steady_state(wall, ROOM, REED)
     assert mean_wall(steady, "v1") < mean_wall(steady, "v2") < float(steady.profile.wall_temperature_at(0.3))
+
+
+@settings(max_examples=12, deadline=None)
+@given(st.lists(st.tuples(st.floats(0.0, 1.0), st.floats(0.02, 0.6), st.floats(0.05, 0.55)), min_size=1,
+                max_size=3))
+def test_any_loops_close_the_energy_balance(loops):
+    # Random loops (share of the flow, length, valve position) on a 0.6 m brass tube: the steady
+    # balance closes (first law), and every loop's wall lies between the room and the breath.
+    from drift.segments import Branch
+
+    branches = tuple(Branch(f"v{k}", p, tube(BRASS, length, flow_fraction=lambda x, s=s: np.full(x.shape, s)))
+                     for k, (s, length, p) in enumerate(loops))
+    wall = dataclasses.replace(tube(BRASS, 0.6), branches=branches)
+    steady = thermal.steady_state(wall, ROOM, REED)
+    assert steady.room_loss_w == pytest.approx(steady.breath_heat_w, rel=1e-6)
+    for (share, _, _), (_, loop) in zip(loops, steady.profile.loops):
+        assert np.all(loop.wall_temperature_k >= ROOM.temperature_k - 1e-9)
+        assert np.all(loop.wall_temperature_k < DEFAULT_BREATH.temperature_k)
+        if share == 0.0:
+            assert np.all(loop.wall_temperature_k == ROOM.temperature_k)
+        elif share > 0.01:
+            assert np.mean(loop.wall_temperature_k) > ROOM.temperature_k + 1e-3
