@@ -63,6 +63,11 @@ class _Balance:
     outlet_k: np.ndarray
 
 
+#: A share of the breath flow below this counts as none (a billionth: far below any note's share,
+#: and its NTU would overflow).
+MIN_FLOW_SHARE = 1e-9
+
+
 def _auto_layers(wall: Wall) -> int:
     """Radial layers of the wall: one when its conduction resistance is small (Biot number
     h w / k below 0.1 with h = 10 W/(m^2 K), a typical outer coefficient), else four."""
@@ -224,6 +229,7 @@ class HeatBalance(_Dynamics):
             phi_play.append(np.where(w > 0.0, phi_bore[valve], 0.0))
             distance.append(b.wall.edges_m - b.wall.edges_m[0])
         w = np.concatenate(share)
+        w[w < MIN_FLOW_SHARE] = 0.0
         self.parent = np.concatenate(parent)
         self.phi_play = np.concatenate(phi_play)
         self.mdot = w * self.mdot_in
