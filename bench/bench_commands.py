@@ -27,6 +27,10 @@ COMMANDS = [
     ["warmup", "--plan", "play:60", "--step", "10"],
     ["advise", "side-blown-flute", "--climate", "hillside-evening"],
     ["advise", "side-blown-flute", "cylindrical-reed", "conical-reed", "--climate", "hillside-evening"],
+    ["chart", "valved-brass"],
+    ["warmup", "valved-brass"],
+    ["warmup", "slide-brass"],
+    ["advise", "valved-brass", "--climate", "hillside-evening"],
 ]
 
 
