@@ -127,6 +127,34 @@ def test_energy_balance_closes_over_a_plan(material):
     assert play[-1].breath_heat_j == pytest.approx(q_in, rel=0.01)
 
 
+#: The source of the breath-heat checks below.
+ENTHALPY_SOURCE = ("humid-air enthalpy from CoolProp HAPropsSI (Hyland & Wexler 1983 as in ASHRAE RP-1485; "
+                   "independent library), water's from IAPWS-95 through CoolProp PropsSI")
+
+
+def saturated_breath(p):
+    """Water ratio [kg/kg dry air] and dry-air mass flow [kg/s] of the breath, saturated at its
+    temperature, flowing in at REED's volume flow (CoolProp HAPropsSI)."""
+    import CoolProp.CoolProp as CP
+
+    t_in = DEFAULT_BREATH.temperature_k
+    w_in = CP.HAPropsSI("W", "T", t_in, "P", p, "R", 1.0)
+    return w_in, REED.flow_m3_s / CP.HAPropsSI("Vha", "T", t_in, "P", p, "R", 1.0) / (1.0 + w_in)
+
+
+def humid_heat_w(t_in, w_in, t_out, mdot_da, p):
+    """Heat [W] humid air gives up from (t_in, w_in) to t_out, its water capped at saturation
+    there and the condensate leaving as liquid at t_out (CoolProp HAPropsSI, Hyland & Wexler 1983
+    as in ASHRAE RP-1485; water from IAPWS-95 through PropsSI)."""
+    import CoolProp.CoolProp as CP
+
+    h_in = CP.HAPropsSI("H", "T", t_in, "P", p, "W", w_in)
+    w_out = min(w_in, CP.HAPropsSI("W", "T", t_out, "P", p, "R", 1.0))
+    h_out = CP.HAPropsSI("H", "T", t_out, "P", p, "W", w_out)
+    h_liquid = CP.PropsSI("H", "T", t_out, "Q", 0, "Water") - CP.PropsSI("H", "T", 273.16, "Q", 0, "Water")
+    return mdot_da * (h_in - h_out - (w_in - w_out) * h_liquid)
+
+
 @pytest.mark.parametrize("material", [BRASS, WOOD])
 def test_breath_heat_against_humid_air_enthalpy(outside, material):
     # The breath's heat from an independent humid-air model: CoolProp HAPropsSI (Hyland & Wexler
@@ -134,21 +162,12 @@ def test_breath_heat_against_humid_air_enthalpy(outside, material):
     # temperature capped at saturation, condensate leaving as liquid at the exit temperature:
     # Q = mdot_da [h_in - h_out - (W_in - W_out) h_liquid]. CO2-rich breath is treated as air
     # (cp of its dry part differs by about 1 %, on the sensible fifth of the heat).
-    import CoolProp.CoolProp as CP
-
     steady = thermal.steady_state(tube(material), ROOM, REED)
     p, t_in, t_out = ROOM.pressure_pa, DEFAULT_BREATH.temperature_k, float(steady.outlet_k[-1])
-    w_in = CP.HAPropsSI("W", "T", t_in, "P", p, "R", 1.0)
-    h_in = CP.HAPropsSI("H", "T", t_in, "P", p, "R", 1.0)
-    mdot_da = REED.flow_m3_s / CP.HAPropsSI("Vha", "T", t_in, "P", p, "R", 1.0) / (1.0 + w_in)
-    w_out = min(w_in, CP.HAPropsSI("W", "T", t_out, "P", p, "R", 1.0))
-    h_out = CP.HAPropsSI("H", "T", t_out, "P", p, "W", w_out)
-    h_liquid = CP.PropsSI("H", "T", t_out, "Q", 0, "Water") - CP.PropsSI("H", "T", 273.16, "Q", 0, "Water")
-    q = mdot_da * (h_in - h_out - (w_in - w_out) * h_liquid)
-    outside.check(steady.breath_heat_w, q,
+    w_in, mdot_da = saturated_breath(p)
+    outside.check(steady.breath_heat_w, humid_heat_w(t_in, w_in, t_out, mdot_da, p),
                   quantity="steady heat the breath gives a brass or wooden tube, 0.1 l/s at 20 °C, 50 % RH",
-                  source="humid-air enthalpy from CoolProp HAPropsSI (Hyland & Wexler 1983 as in ASHRAE RP-1485; "
-                  "independent library), water's from IAPWS-95 through CoolProp PropsSI", rel=0.01, unit="W")
+                  source=ENTHALPY_SOURCE, rel=0.01, unit="W")
     # Steady: everything the breath gives up leaves through the outer surface.
     assert steady.room_loss_w == pytest.approx(steady.breath_heat_w, rel=1e-6)
 
@@ -380,19 +399,6 @@ def looped(shares, bore_length=0.6, loop_length=0.3, valve_m=0.3, material=BRASS
     return dataclasses.replace(tube(material, bore_length), branches=loops)
 
 
-def humid_heat_w(t_in, w_in, t_out, mdot_da, p):
-    """Heat [W] humid air gives up from (t_in, w_in) to t_out, its water capped at saturation
-    there and the condensate leaving as liquid at t_out (CoolProp HAPropsSI, Hyland & Wexler 1983
-    as in ASHRAE RP-1485; water from IAPWS-95 through PropsSI)."""
-    import CoolProp.CoolProp as CP
-
-    h_in = CP.HAPropsSI("H", "T", t_in, "P", p, "W", w_in)
-    w_out = min(w_in, CP.HAPropsSI("W", "T", t_out, "P", p, "R", 1.0))
-    h_out = CP.HAPropsSI("H", "T", t_out, "P", p, "W", w_out)
-    h_liquid = CP.PropsSI("H", "T", t_out, "Q", 0, "Water") - CP.PropsSI("H", "T", 273.16, "Q", 0, "Water")
-    return mdot_da * (h_in - h_out - (w_in - w_out) * h_liquid)
-
-
 def test_loop_breath_heat_against_humid_air_enthalpy(outside):
     # The bore and a loop taking half the flow at its middle: the bore's heat from the saturated
     # breath to its exit, plus half the flow's heat from the air leaving the segment before the
@@ -406,14 +412,12 @@ def test_loop_breath_heat_against_humid_air_enthalpy(outside):
     valve = int(np.argmin(np.abs(wall.edges_m[1:] - 0.3)))
     t_valve, t_bore_out, t_loop_out = (float(steady.outlet_k[i]) for i in (valve, n - 1, -1))
     assert t_bore_out < t_valve < t_in and ROOM.temperature_k < t_loop_out < t_valve
-    w_in = CP.HAPropsSI("W", "T", t_in, "P", p, "R", 1.0)
+    w_in, mdot_da = saturated_breath(p)
     w_valve = min(w_in, CP.HAPropsSI("W", "T", t_valve, "P", p, "R", 1.0))
-    mdot_da = REED.flow_m3_s / CP.HAPropsSI("Vha", "T", t_in, "P", p, "R", 1.0) / (1.0 + w_in)
     q = humid_heat_w(t_in, w_in, t_bore_out, mdot_da, p) + humid_heat_w(t_valve, w_valve, t_loop_out, 0.5 * mdot_da, p)
     outside.check(steady.breath_heat_w, q,
                   quantity="steady heat the breath gives a brass tube and a loop taking half its flow, 0.1 l/s, 20 °C",
-                  source="humid-air enthalpy from CoolProp HAPropsSI (Hyland & Wexler 1983 as in ASHRAE RP-1485; "
-                  "independent library), water's from IAPWS-95 through CoolProp PropsSI", rel=0.01, unit="W")
+                  source=ENTHALPY_SOURCE, rel=0.01, unit="W")
     # Steady: everything the breath gives up leaves through the outer surfaces.
     assert steady.room_loss_w == pytest.approx(steady.breath_heat_w, rel=1e-6)
 
