@@ -69,13 +69,30 @@ def air_command(temp_c, rh_pct, pressure_kpa, altitude_m, co2_ppm, breath_fracti
     render.emit(render.air_document(state, breath_fraction), fmt, render.air_table, render.air_csv)
 
 
+SHOW_HELP = "Print the bundled file NAME instead, to start a file of your own from it (docs/formats.md)."
+
+
+def _shown(text_of, name: str) -> str:
+    """A bundled file's text for ``--show``; an unknown name is refused naming the option."""
+    from drift.errors import InputFileError
+
+    try:
+        return text_of(name)
+    except InputFileError as error:
+        raise InputFileError(f"--show: {error}") from None
+
+
 @main.command("climates")
 @FORMAT_OPTION
+@click.option("--show", "show", default=None, metavar="NAME", help=SHOW_HELP)
 @reports_errors
-def climates_command(fmt):
+def climates_command(fmt, show):
     """List the bundled climates with their conditions."""
     from drift import climate, render
 
+    if show is not None:
+        click.echo(_shown(climate.bundled_climate_text, show), nl=False)
+        return
     doc = {"climates": [render.climate_record(c) for c in climate.bundled_climates()]}
     render.emit(doc, fmt, render.climates_table, render.listing_csv)
 
@@ -460,12 +477,16 @@ def resonances_command(instrument, note_name, temp_c, rh_pct, pressure_kpa, alti
 
 @main.command("instruments")
 @FORMAT_OPTION
+@click.option("--show", "show", default=None, metavar="NAME", help=SHOW_HELP)
 @reports_errors
-def instruments_command(fmt):
+def instruments_command(fmt, show):
     """List the bundled instruments with a one-line description."""
     from drift import render
-    from drift.instrument import bundled_instruments
+    from drift.instrument import bundled_instrument_text, bundled_instruments
 
+    if show is not None:
+        click.echo(_shown(bundled_instrument_text, show), nl=False)
+        return
     doc = {"instruments": [render.instrument_record(i) for i in bundled_instruments()]}
     render.emit(doc, fmt, render.instruments_table, render.listing_csv)
 

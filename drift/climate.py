@@ -25,7 +25,7 @@ import numpy as np
 from drift import constants as K
 from drift.constants import DEFAULT_CO2_FRACTION, LIMITS, STANDARD_PRESSURE, ZERO_CELSIUS
 from drift.errors import InputFileError, OutOfRangeError, check_range
-from drift.files import Table, bundled_files, bundled_folder, load_named, read_toml
+from drift.files import Table, bundled_files, bundled_folder, bundled_text, load_named, read_toml
 
 TOP_KEYS = ("name", "description", "air", "player", "change")
 AIR_KEYS = ("temperature_c", "relative_humidity_pct", "pressure_kpa", "altitude_m", "co2_ppm", "sun_w_m2",
@@ -449,6 +449,11 @@ def load_player_file(path: str | Path) -> dict:
 def _bundled_dir():
     """The folder of the bundled climates (``climates/`` beside the package in a source checkout)."""
     return bundled_folder("drift.climates", Path(__file__).resolve().parent.parent / "climates")
+
+
+def bundled_climate_text(name: str) -> str:
+    """The file of a bundled climate as text (docs/formats.md): a start for one's own."""
+    return bundled_text(name, _bundled_dir(), "climate")
 
 
 def bundled_climates() -> list[Climate]:

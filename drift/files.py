@@ -133,6 +133,13 @@ def load_named(source: str | Path, folder, label_prefix: str, what: str) -> tupl
     return read_toml_text(resource.read_text(encoding="utf-8"), label, what), label
 
 
+def bundled_text(name: str, folder, what: str) -> str:
+    """The text of a bundled ``.toml`` file of ``folder`` by name (unknown names: InputFileError
+    with a did-you-mean suggestion and the bundled names)."""
+    files = bundled_files(folder)
+    return files[choose(str(name), files, what, "Bundled")].read_text(encoding="utf-8")
+
+
 class Table:
     """One table of a parsed TOML file, with typed, range-checked access to its keys.
 

@@ -20,7 +20,7 @@ import numpy as np
 from drift.climate import Room
 from drift.constants import A4_HZ, DEFAULT_CO2_FRACTION, STANDARD_PRESSURE, ZERO_CELSIUS
 from drift.errors import DriftError, InputFileError, OutOfRangeError
-from drift.files import Table, bundled_files, load_named, short_repr
+from drift.files import Table, bundled_files, bundled_text, load_named, short_repr
 from drift.materials import DEFAULT_MATERIALS, Material, material
 from drift.scale import note_to_midi
 from drift.valves import Slide, Valve, parse_note_path, parse_slide, parse_stations, parse_valves
@@ -536,6 +536,11 @@ def load_instrument(source: str | Path) -> Instrument:
     """
     data, label = load_named(source, _bundled_dir(), "drift/data/instruments", "instrument")
     return parse_instrument(data, label)
+
+
+def bundled_instrument_text(name: str) -> str:
+    """The file of a bundled instrument as text (docs/formats.md): a start for one's own."""
+    return bundled_text(name, _bundled_dir(), "instrument")
 
 
 def bundled_instruments() -> list[Instrument]:

@@ -180,6 +180,8 @@ CASES = [
     ("`--plan rest:10,play:20`", ["advise", "cylindrical-reed", "--climate", "tuning-room", "--plan", "rest:10,play:20"], {}),
     ("`--tolerance -1`", ["advise", "cylindrical-reed", "--climate", "tuning-room", "--tolerance", "-1"], {}),
     ("`--format csv`", ["advise", "cylindrical-reed", "--climate", "tuning-room", "--format", "csv"], {}),
+    ("`--show` an unknown instrument", ["instruments", "--show", "trumpet"], {}),
+    ("`--show` an unknown climate", ["climates", "--show", "winter-chruch"], {}),
 ]
 
 

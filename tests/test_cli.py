@@ -625,3 +625,24 @@ def test_brass_instruments_through_chart_design_and_advise():
     sheet = invoke("advise", "valved-brass", "slide-brass", "--climate", "winter-church", "--plan",
                    "play:5,rest:2,play:5", "--written").stdout
     assert "valved-brass" in sheet and "slide-brass" in sheet and "Bb" in sheet
+
+
+@pytest.mark.parametrize("command, name", [("instruments", "valved-brass"), ("climates", "hillside-evening")])
+def test_show_prints_the_bundled_file_to_start_ones_own(tmp_path, command, name):
+    # The printed file, saved and loaded as one's own, is the bundled one (its source aside).
+    import dataclasses
+
+    from conftest import invoke
+
+    text = invoke(command, "--show", name).stdout
+    own = tmp_path / "mine.toml"
+    own.write_text(text, encoding="utf-8")
+    if command == "instruments":
+        mine, bundled = load_instrument(own), load_instrument(name)
+    else:
+        mine, bundled = climate.load_climate(own), climate.load_climate(name)
+    compared = [f.name for f in dataclasses.fields(bundled) if f.name != "source"]
+    assert len(compared) > 3
+    for field in compared:
+        a, b = getattr(mine, field), getattr(bundled, field)
+        assert np.array_equal(a, b) if isinstance(b, np.ndarray) else a == b, field
