@@ -19,10 +19,10 @@ os.environ.setdefault("OPENBLAS_NUM_THREADS", "1")
 
 from drift import __version__
 from drift.constants import GIG_PLAN, TOLERANCE_CENTS
-from drift.options import (A4_OPTION, AT_REST_OPTION, FORMAT_OPTION, INSTRUMENT_ARGUMENT, OUTPUT_OPTION,
-                           PLOT_OPTION, RH_OPTION, WRITTEN_OPTION, Commands, FiniteRange, LazyProgress,
-                           air_options, check_plot, draw, parse_plan_option, pressure_pa, range_of, reports_errors,
-                           warn_on_stderr)
+from drift.options import (A4_OPTION, AT_REST_OPTION, FORMAT_OPTION, INSTRUMENT_ARGUMENT, MAX_MINUTES_OPTION,
+                           OUTPUT_OPTION, PLOT_OPTION, RH_OPTION, WRITTEN_OPTION, Commands, FiniteRange, LazyProgress,
+                           air_options, check_budget, check_plot, draw, parse_plan_option, pressure_pa, range_of,
+                           reports_errors, warn_on_stderr)
 
 
 @click.group(cls=Commands, context_settings={"help_option_names": ["-h", "--help"], "max_content_width": 100})
@@ -117,15 +117,16 @@ def climates_command(fmt, show):
 @FORMAT_OPTION
 @OUTPUT_OPTION
 @PLOT_OPTION
+@MAX_MINUTES_OPTION
 @reports_errors
 def chart_command(instrument, climate_names, reference_name, a4_hz, show_offsets, tolerance_cents, written, fmt,
-                  output, plot_path):
+                  output, plot_path, max_minutes):
     """Drift of every note across climates, with the tuning-joint change for each.
 
     INSTRUMENT is a bundled instrument name or an instrument file (default: the bundled
     default instrument, see `drift instruments`).
     """
-    from drift import advice, chart, climate, files, notation, render
+    from drift import advice, budget, chart, climate, files, notation, render
     from drift.instrument import DEFAULT_INSTRUMENT, load_instrument
 
     check_plot(plot_path)
@@ -134,6 +135,8 @@ def chart_command(instrument, climate_names, reference_name, a4_hz, show_offsets
     climates = ([climate.load_climate(c) for c in climate_names] if climate_names
                 else climate.bundled_climates())
     reference = climate.load_climate(reference_name) if reference_name else None
+    check_budget(budget.chart_cost(inst, climates, reference), max_minutes,
+                 "fewer climates (--climate) would bring it down")
     progress = LazyProgress(len(climates) + 1, "computing")
     try:
         result = chart.drift_chart(inst, climates, reference, a4_hz, tolerance_cents, progress)
@@ -167,9 +170,10 @@ def chart_command(instrument, climate_names, reference_name, a4_hz, show_offsets
 @FORMAT_OPTION
 @OUTPUT_OPTION
 @PLOT_OPTION
+@MAX_MINUTES_OPTION
 @reports_errors
 def warmup_command(instrument, climate_name, plan_text, step_s, reference_name, all_notes, written, fmt, output,
-                   plot_path):
+                   plot_path, max_minutes):
     """Pitch of every note over a play/rest plan, and the time it takes to settle.
 
     INSTRUMENT is a bundled instrument name or an instrument file. The bore warms while it is
@@ -182,7 +186,7 @@ def warmup_command(instrument, climate_name, plan_text, step_s, reference_name, 
     play phase takes to come within 2 cents of the steady state, when to tune and how far to
     move the joint then, and the care cautions of the climate.
     """
-    from drift import advice, climate, files, notation, render, thermal, warmup
+    from drift import advice, budget, climate, files, notation, render, thermal, warmup
     from drift.constants import ZERO_CELSIUS
     from drift.instrument import DEFAULT_INSTRUMENT, load_instrument
 
@@ -190,6 +194,8 @@ def warmup_command(instrument, climate_name, plan_text, step_s, reference_name, 
     plan = parse_plan_option(plan_text)
     files.check_outputs([output, plot_path], [instrument, climate_name, reference_name])
     inst = load_instrument(instrument or DEFAULT_INSTRUMENT)
+    check_budget(budget.warmup_cost(inst, plan, step_s), max_minutes,
+                 "a plan of fewer phases (--plan) or a larger --step would bring it down")
     design = inst.design
     blowing = None
     if climate_name:
@@ -241,8 +247,10 @@ def warmup_command(instrument, climate_name, plan_text, step_s, reference_name, 
 @FORMAT_OPTION
 @OUTPUT_OPTION
 @PLOT_OPTION
+@MAX_MINUTES_OPTION
 @reports_errors
-def fit_command(log_path, instrument, climate_name, plan_text, a4_hz, player_path, fmt, output, plot_path):
+def fit_command(log_path, instrument, climate_name, plan_text, a4_hz, player_path, fmt, output, plot_path,
+                max_minutes):
     """Fit the player's breath flow, breath temperature and the bore's heat exchange to a tuner log.
 
     LOG is a CSV file with a header: minute,note,cents and optionally state (play or rest), one
@@ -250,7 +258,7 @@ def fit_command(log_path, instrument, climate_name, plan_text, a4_hz, player_pat
     instrument file. One constant offset (the player's embouchure) is fitted with them, so that
     only the drift counts; each value is reported with its standard uncertainty.
     """
-    from drift import climate, files, fit, render, render_fit
+    from drift import budget, climate, files, fit, render, render_fit
     from drift.instrument import DEFAULT_INSTRUMENT, load_instrument
 
     check_plot(plot_path)
@@ -258,6 +266,8 @@ def fit_command(log_path, instrument, climate_name, plan_text, a4_hz, player_pat
     files.check_outputs([output, plot_path, player_path], [log_path, instrument, climate_name])
     log = fit.read_tuner_log(log_path)
     inst = load_instrument(instrument or DEFAULT_INSTRUMENT)
+    check_budget(budget.fit_cost(inst, fit.log_plan(log, plan), len(log.times_s), log.notes), max_minutes,
+                 "a plan of fewer phases (--plan) or fewer readings would bring it down")
     if climate_name:
         where = climate.load_climate(climate_name)
         room, player, label = where.room, where.player, where.name
@@ -287,8 +297,9 @@ def fit_command(log_path, instrument, climate_name, plan_text, a4_hz, player_pat
 @FORMAT_OPTION
 @OUTPUT_OPTION
 @PLOT_OPTION
+@MAX_MINUTES_OPTION
 @reports_errors
-def design_command(instrument, a4_hz, rh_pct, climate_names, at_rest, written, fmt, output, plot_path):
+def design_command(instrument, a4_hz, rh_pct, climate_names, at_rest, written, fmt, output, plot_path, max_minutes):
     """The room temperature the instrument is in tune at, and how each note moves there.
 
     INSTRUMENT is a bundled instrument name or an instrument file. The design temperature is the
@@ -298,13 +309,15 @@ def design_command(instrument, a4_hz, rh_pct, climate_names, at_rest, written, f
     in the breath. With --climate, each climate's offsets for that design and the compromise
     design temperature that keeps the worst climate's mean offset smallest.
     """
-    from drift import climate, design, files, notation, render, render_design
+    from drift import budget, climate, design, files, notation, render, render_design
     from drift.instrument import DEFAULT_INSTRUMENT, load_instrument
 
     check_plot(plot_path)
     files.check_outputs([output, plot_path], [instrument, *climate_names])
     inst = load_instrument(instrument or DEFAULT_INSTRUMENT)
     climates = [climate.load_climate(c) for c in climate_names]
+    check_budget(budget.design_cost(inst, climates, playing=not at_rest), max_minutes,
+                 "fewer climates (--climate) or --at-rest would bring it down")
     # batches of bore states: the scan, about three steps of the root, the sensitivities; with
     # climates, theirs and about three steps of the compromise (an estimate: the bar stops at its end)
     progress = LazyProgress(5 + (4 if climates else 0), "computing")
@@ -331,8 +344,9 @@ def design_command(instrument, a4_hz, rh_pct, climate_names, at_rest, written, f
 @click.option("--output", "output", type=click.Path(dir_okay=False, writable=True), required=True,
               help="The new instrument file to write (never the input file).")
 @FORMAT_OPTION
+@MAX_MINUTES_OPTION
 @reports_errors
-def retune_command(instrument, room_temp_c, rh_pct, a4_hz, at_rest, output, fmt):
+def retune_command(instrument, room_temp_c, rh_pct, a4_hz, at_rest, output, fmt, max_minutes):
     """Move the holes (and the bore length at the tuning joint) for another design condition.
 
     INSTRUMENT is a bundled instrument name or an instrument file. Every note is brought as close
@@ -343,7 +357,7 @@ def retune_command(instrument, room_temp_c, rh_pct, a4_hz, at_rest, output, fmt)
     from importlib import resources
     from pathlib import Path
 
-    from drift import design, files, render, render_design
+    from drift import budget, design, files, render, render_design
     from drift.constants import ZERO_CELSIUS
     from drift.errors import DriftError
     from drift.instrument import DEFAULT_INSTRUMENT, load_instrument
@@ -353,6 +367,8 @@ def retune_command(instrument, room_temp_c, rh_pct, a4_hz, at_rest, output, fmt)
     files.check_outputs([output], [instrument, inst.source, str(bundled)])
     if not Path(output).resolve().parent.is_dir():
         raise DriftError(f"--output {output}: the folder {Path(output).parent} does not exist")
+    check_budget(budget.retune_cost(inst, playing=not at_rest), max_minutes,
+                 "--at-rest (no steady states) would bring it down")
     progress = LazyProgress(100, "retuning")   # evaluations of the notes: 70-100 on the bundled instruments
     try:
         result = design.retune(inst, room_temp_c + ZERO_CELSIUS, None if rh_pct is None else rh_pct / 100.0,
@@ -389,9 +405,10 @@ def retune_command(instrument, room_temp_c, rh_pct, a4_hz, at_rest, output, fmt)
               help="A sheet of short lines (60 columns) or JSON.")
 @OUTPUT_OPTION
 @PLOT_OPTION
+@MAX_MINUTES_OPTION
 @reports_errors
 def advise_command(instruments, ensemble_file, climate_name, plan_text, a4_hz, tolerance_cents, written, fmt,
-                   output, plot_path):
+                   output, plot_path, max_minutes):
     """What to tell the players through an evening: one instrument or an ensemble.
 
     INSTRUMENT is a bundled instrument name or an instrument file; repeat it for an ensemble, or
@@ -400,7 +417,7 @@ def advise_command(instruments, ensemble_file, climate_name, plan_text, a4_hz, t
     the joint setting that centres it, how far it sits from the ensemble; then who tunes to
     whom, when to retune, and the care cautions of the evening's extremes.
     """
-    from drift import climate, files, gig, sheet
+    from drift import budget, climate, files, gig, sheet
     from drift.ensemble import load_ensemble
     from drift.errors import DriftError
     from drift.instrument import load_instrument
@@ -423,6 +440,8 @@ def advise_command(instruments, ensemble_file, climate_name, plan_text, a4_hz, t
         raise click.BadParameter(str(error), param_hint="--plan") from None
     ensemble = [*(group.members if group else ()), *(load_instrument(name) for name in instruments)]
     evening = climate.load_climate(climate_name)
+    check_budget(budget.advise_cost(ensemble, plan, len(evening.schedule().times_s) - 1), max_minutes,
+                 "fewer instruments or a plan of fewer phases (--plan) would bring it down")
     progress = LazyProgress(len(ensemble), "computing")
     try:
         result = gig.plan_gig(ensemble, evening, plan, a4_hz, tolerance_cents, progress)

@@ -13,6 +13,8 @@ import sys
 
 import click
 
+from drift.constants import MAX_MINUTES
+
 FORMAT_OPTION = click.option(
     "--format",
     "fmt",
@@ -221,3 +223,20 @@ WRITTEN_OPTION = click.option("--written", is_flag=True,
                               help="Show written note names in the table (the instrument file's "
                                    "transposition_semitones); JSON always carries both note (sounding) and "
                                    "written_note.")
+
+
+MAX_MINUTES_OPTION = click.option(
+    "--max-minutes", "max_minutes", type=FiniteRange(0.0, 10000.0, min_open=True), default=MAX_MINUTES,
+    show_default=True, metavar="MIN",
+    help="Refuse, before it starts, a run estimated to take longer than this many minutes of computing "
+         "[min], above 0 (the estimate counts the bore's wall nodes, climates, plan, notes and played "
+         "paths: docs/performance.md). Raise it to allow a long run.")
+
+
+def check_budget(estimate, max_minutes: float, remedy: str) -> None:
+    """Refuse a run whose estimated cost (:mod:`drift.budget`) exceeds ``--max-minutes``: two
+    lines on stderr, exit status 2 (through :func:`reports_errors`). ``remedy`` says what would
+    bring the cost down."""
+    from drift import budget
+
+    budget.check(estimate, max_minutes, "--max-minutes", remedy)

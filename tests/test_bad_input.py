@@ -129,6 +129,10 @@ CASES = [
     ("a 0.5 mm bore: no note sounds", ["chart", "bad.toml", "--climate", "tuning-room"],
      {"bad.toml": 'name = "thin"\nexcitation = "reed"\n[bore]\nstations_mm = [[0, 0.5], [600, 0.5]]\n'
                     '[[note]]\nname = "C4"\n'}),
+    ("a 10 m wooden bore: a fit over the time budget", ["fit", "log.csv", "long.toml", "--plan", ",".join(["play:30,rest:30"] * 5)],
+     {"long.toml": 'name = "long"\nexcitation = "reed"\nmaterial = "tropical_hardwood"\nwall_mm = 6.0\n[bore]\n'
+                   'stations_mm = [[0, 47], [10000, 47]]\n[[note]]\nname = "C1"\n',
+      "log.csv": "minute,note,cents\n" + "".join(f"{m},C1,{m - 20}\n" for m in range(1, 24, 3))}),
     # climate files
     ("no `[air] temperature_c`", ["chart", "--climate", "room.toml"], room("temperature_c = 18.0", "")),
     ("`pressure_kpa` and `altitude_m`", ["chart", "--climate", "room.toml"], room("", "pressure_kpa = 90\naltitude_m = 900")),
@@ -173,6 +177,9 @@ CASES = [
     ("no `--output`", ["retune", "--room-temp", "25"], {}),
     ("`--room-temp 70`", ["retune", "--room-temp", "70", "--output", "new.toml"], {}),
     ("`--output` in a missing folder", ["retune", "--room-temp", "25", "--output", "nowhere/new.toml"], {}),
+    ("`--max-minutes nan`", ["warmup", "--max-minutes", "nan"], {}),
+    ("`--max-minutes -1`", ["chart", "--max-minutes", "-1"], {}),
+    ("`--max-minutes 0.001`: the run's estimate is over it", ["chart", "--climate", "tuning-room", "--max-minutes", "0.001"], {}),
     ("`--a4 379`", ["fit", "log.csv", "--a4", "379"], {"log.csv": LOG}),
     ("`--write-player` is the log", ["fit", "log.csv", "--write-player", "log.csv"], {"log.csv": LOG}),
     ("no `--climate`", ["advise", "cylindrical-reed"], {}),

@@ -20,7 +20,7 @@ LAYERS = {
     "segments": ["segments"],
     "thermal": ["bore_state", "heat_balance", "thermal"],
     "pitch": ["resonance", "pitch"],
-    "jobs": ["advice", "layout", "chart", "design", "warmup", "fit", "gig"],
+    "jobs": ["advice", "budget", "layout", "chart", "design", "warmup", "fit", "gig"],
     "edge": ["render", "render_fit", "render_design", "notation", "sheet", "plot", "options", "cli", "__main__", "__init__"],
 }
 ORDER = [m for modules in LAYERS.values() for m in modules]
