@@ -7,7 +7,7 @@ import time
 
 import numpy as np
 
-from drift import thermal, warmup
+from drift import heat_balance, thermal, warmup
 from drift.climate import Room, default_blowing, parse_plan
 from drift.instrument import load_instrument
 from drift.segments import instrument_wall
@@ -29,7 +29,7 @@ def main():
         instrument = load_instrument(name)
         wall = instrument_wall(instrument)
         blowing = default_blowing(instrument.excitation)
-        layers = thermal._auto_layers(wall)
+        layers = heat_balance.radial_layers(wall)
         print(f"{name}: {wall.positions_m.size} segments x {layers} layers")
         timed("  steady state", lambda: thermal.steady_state(wall, room, blowing))
         timed("  25 min timeline, 51 states", lambda: thermal.timeline(wall, room, plan, times, blowing))

@@ -25,7 +25,7 @@ from drift.climate import Climate, Phase, plan_duration_s
 from drift.constants import LONGEST_PLAN_S, SEGMENT_LENGTH_M
 from drift.ensemble import Member
 from drift.errors import DriftError
-from drift.heat_balance import _auto_layers
+from drift.heat_balance import radial_layers
 from drift.instrument import Instrument
 from drift.segments import instrument_wall, played_path
 
@@ -120,7 +120,7 @@ def bore_of(instrument: Instrument, names: Sequence[str] | None = None) -> Bore:
         acoustic += cut * len(members)
         cuts += cut
     segments = wall.positions_m.size + sum(b.wall.positions_m.size for b in wall.branches)   # valve loops too
-    return Bore(instrument.name, instrument.length_m, int(segments), _auto_layers(wall),
+    return Bore(instrument.name, instrument.length_m, int(segments), radial_layers(wall),
                 1 if plain else max(1, len(groups)), int(acoustic), int(cuts))
 
 

@@ -68,7 +68,7 @@ class _Balance:
 MIN_FLOW_SHARE = 1e-9
 
 
-def _auto_layers(wall: Wall) -> int:
+def radial_layers(wall: Wall) -> int:
     """Radial layers of the wall: one when its conduction resistance is small (Biot number
     h w / k below 0.1 with h = 10 W/(m^2 K), a typical outer coefficient), else four."""
     biot = 10.0 * np.max(wall.thickness_m) / wall.material.conductivity_across
@@ -142,7 +142,7 @@ class HeatBalance(_Dynamics):
     def __init__(self, wall: Wall, room: Room, blowing: Blowing, breath: Breath,
                  layers: int | None = None):
         self.wall, self.room, self.blowing, self.breath = wall, room, blowing, breath
-        m = _auto_layers(wall) if layers is None else int(layers)
+        m = radial_layers(wall) if layers is None else int(layers)
         if m < 1:
             raise OutOfRangeError("the wall needs at least one radial layer")
         # The bore's segments, then each valve loop's (wall.branches): one state, no conduction
