@@ -85,7 +85,9 @@ def to_toml(instrument: Instrument, header: str = "") -> str:
         lines += ["", "[[note]]", f"name = {_quote(n.name)}", f"closed = [{closed}]", f"register = {n.register}"]
         if n.valves:
             lines.append(f"valves = [{', '.join(_quote(v) for v in n.valves)}]")
-        if n.slide_m:
+        if n.slide_m and n.slide_m in ins.slide.positions_m:        # a numbered position, by its number
+            lines.append(f"slide_position = {ins.slide.positions_m.index(n.slide_m) + 1}")
+        elif n.slide_m:
             lines.append(f"slide_mm = {_fmt(n.slide_m * 1e3)}")
     return "\n".join(lines) + "\n"
 

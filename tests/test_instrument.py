@@ -10,6 +10,7 @@ import pytest
 from conftest import BUNDLED, TWO_HOLE_PIPE
 from drift import instrument, instrument_file, materials, pitch, thermal
 from drift.errors import DriftError, InputFileError, OutOfRangeError
+from drift.scale import note_to_midi
 
 
 def test_minimal_file_and_defaults(write_toml):
@@ -87,6 +88,12 @@ def test_bundled_instruments(bundled_instruments):
     assert instrument.DEFAULT_INSTRUMENT in BUNDLED
 
 
+#: The open notes of the brass instruments by register (sounding): an instrument in B-flat, the
+#: valved one an octave above the slide one (common practice).
+VALVED_OPEN = {2: "Bb3", 3: "F4", 4: "Bb4", 5: "D5", 6: "F5", 8: "Bb5"}
+SLIDE_OPEN = {2: "Bb2", 3: "F3", 4: "Bb3", 5: "D4", 6: "F4"}
+
+
 def test_bundled_instruments_meet_their_brief(bundled_instruments):
     a, b, c = (bundled_instruments[n] for n in ("cylindrical-reed", "conical-reed", "side-blown-flute"))
     assert 0.60 <= a.length_m <= 0.67 and len(a.notes) >= 18 and {n.register for n in a.notes} == {1, 2}
@@ -99,9 +106,30 @@ def test_bundled_instruments_meet_their_brief(bundled_instruments):
     assert reed.excitation == "reed" and reed.stations_m[-1, 1] > 5 * reed.stations_m[0, 1]   # conical
     assert duct.excitation == "jet" and duct.input_end.embouchure_position_m == 0.0          # end-blown
     assert valved.excitation == "lips" and len(valved.valves) == 3 and valved.transposition_semitones == 2
-    assert {len(n.valves) for n in valved.notes} >= {0, 1, 2}
     assert slide.excitation == "lips" and len(slide.slide.positions_m) == 7
-    assert {n.register for n in slide.notes} >= {2, 3, 4, 5, 6} and min(n.register for n in slide.notes) == 2
+    # the brass play their normal range, every chromatic note once (common practice): valved from
+    # register 2 on all three valves to register 8 open (register 7 unused), slide from register
+    # 2 in the seventh position to register 6 open
+    for ins, low, high, registers in ((valved, "E3", "Bb5", {2, 3, 4, 5, 6, 8}),
+                                      (slide, "E2", "F4", {2, 3, 4, 5, 6})):
+        midi = sorted(note_to_midi(n.name) for n in ins.notes)
+        assert midi == list(range(note_to_midi(low), note_to_midi(high) + 1))
+        assert {n.register for n in ins.notes} == registers
+    # each note in the usual fingering: the open note of its register lowered by the fingering's
+    # semitones (2: one, 1: two, 1+2: three, 2+3: four, 1+3: five, 1+2+3: six), or by a
+    # semitone a slide position (common practice)
+    lowered = {(): 0, ("v2",): 1, ("v1",): 2, ("v1", "v2"): 3, ("v2", "v3"): 4, ("v1", "v3"): 5,
+               ("v1", "v2", "v3"): 6}
+    for ins, opens, steps in ((valved, VALVED_OPEN, lambda n: lowered[tuple(sorted(n.valves))]),
+                              (slide, SLIDE_OPEN, lambda n: slide.slide.positions_m.index(n.slide_m))):
+        for n in ins.notes:
+            assert note_to_midi(opens[n.register]) - note_to_midi(n.name) == steps(n), n
+    assert {tuple(sorted(n.valves)) for n in valved.notes} == set(lowered)
+    assert {n.slide_m for n in slide.notes} == set(slide.slide.positions_m)
+    # the third loop a little longer than the first and second together, so that 2+3 and 1+3
+    # are not too sharp (common practice)
+    loop = {v.name: v.loop_length_m for v in valved.valves}
+    assert loop["v2"] < loop["v1"] < loop["v1"] + loop["v2"] < loop["v3"]
 
 
 def test_joint_change(two_hole_pipe):

@@ -3,6 +3,8 @@ search."""
 
 import dataclasses
 import math
+import re
+from pathlib import Path
 
 import numpy as np
 import pytest
@@ -23,14 +25,24 @@ from references import nearest_note
 
 def test_bundled_instruments_in_equal_temperament_at_design(design_notes):
     # A regression check of the bundled files, not an outside check: drift's own layout solver
+    # (for the brass, a least-squares fit of the bore length and the loops or slide travels)
     # tuned them to A4 = 440 Hz (ISO 16) at their [design] condition, so every note must stay
-    # within +-10 cent of equal temperament there while the model and the files agree.
+    # within +-10 cent of equal temperament there while the model and the files agree. The
+    # exception: a note on all three valves runs sharp (loops that put 1+2+3 in tune would put
+    # the single valves out of it; the player pulls the third valve slide: common practice),
+    # though less than the 50 cent or so of loops sized for single valves
+    # (test_valve_combinations_run_sharp); the file's header names those beyond 10 cent.
     assert sorted(design_notes) == sorted(BUNDLED)
     for name, (ins, notes) in design_notes.items():
         assert len(notes) == len(ins.notes)
         dev = np.array([n.deviation_cents for n in notes])
         assert np.all(np.isfinite(dev)), name
-        assert np.max(np.abs(dev)) <= 10.0, (name, dev)
+        three = np.array([len(n.valves) == 3 for n in ins.notes])
+        assert np.max(np.abs(dev[~three])) <= 10.0, (name, dev)
+        assert np.all((dev[three] > 0.0) & (dev[three] < 50.0)), (name, dev)
+        header = Path(ins.source).read_text().split("\n\n")[0]
+        named = set(re.findall(r"(\w+) \(register", header.partition("# Beyond")[2].replace("\n#", "")))
+        assert named == {n.note for n, d in zip(notes, dev) if abs(d) > 10.0}, name
 
 
 def test_cylinder_reed_sounds_lower_than_longer_cone(design_notes):

@@ -53,8 +53,11 @@ def test_valves_slide_and_notes_are_read(write_toml):
     assert ins.slide.positions_m == pytest.approx((0.0, 0.04, 0.085)) and ins.slide.max_travel_m == 0.6
     assert [(n.valves, n.slide_m) for n in ins.notes] == [((), 0.0), (("v1", "v2"), 0.0), ((), 0.085),
                                                            ((), pytest.approx(0.2505))]
-    again = instrument.parse_instrument(tomllib.loads(instrument_file.to_toml(ins)), "again")
+    text = instrument_file.to_toml(ins)
+    again = instrument.parse_instrument(tomllib.loads(text), "again")
     assert again.valves == ins.valves and again.slide == ins.slide and again.notes == ins.notes
+    # a note at a numbered position is written by its number, any other travel in mm
+    assert "slide_position = 3" in text and "slide_mm = 250.5" in text and "slide_mm = 85" not in text
     # the tuning joint before the valves moves them and the slide with the bore beyond it
     moved = ins.with_joint_change(0.004)
     assert moved.valves[0].position_m == pytest.approx(0.604) and moved.slide.position_m == pytest.approx(1.004)
