@@ -4,7 +4,6 @@ search."""
 import dataclasses
 import math
 import re
-from pathlib import Path
 
 import numpy as np
 import pytest
@@ -40,7 +39,7 @@ def test_bundled_instruments_in_equal_temperament_at_design(design_notes):
         three = np.array([len(n.valves) == 3 for n in ins.notes])
         assert np.max(np.abs(dev[~three])) <= 10.0, (name, dev)
         assert np.all((dev[three] > 0.0) & (dev[three] < 50.0)), (name, dev)
-        header = Path(ins.source).read_text().split("\n\n")[0]
+        header = instrument.bundled_instrument_text(name).split("\n\n")[0]
         named = set(re.findall(r"(\w+) \(register", header.partition("# Beyond")[2].replace("\n#", "")))
         assert named == {n.note for n, d in zip(notes, dev) if abs(d) > 10.0}, name
 
