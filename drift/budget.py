@@ -9,8 +9,8 @@ front (the wall the thermal model will use, :func:`drift.segments.instrument_wal
 radial layers; the plan, its rows, the climates, the notes, the played paths, the fit's
 evaluations) and weighs it with constants calibrated on measured runs (docs/performance.md,
 "Time budget"; ``bench/bench_budget.py``). The estimate is for ordering and refusing, not a
-promise: on the 53 runs its constants were fitted to it gave 0.56 to 1.37 times the measured CPU
-time, on 7 runs held out 0.91 to 1.73.
+promise: on the 53 runs its constants were fitted to it gave 0.44 to 1.63 times the measured CPU
+time, on 7 runs held out 0.84 to 1.53.
 
 Nothing here computes physics: each function reads the instrument and the inputs and counts.
 """
@@ -37,8 +37,8 @@ from drift.segments import instrument_wall, played_path
 #: a bore state searched, per played path [s]; ``segment`` per acoustic segment of each path (its
 #: network built) [s]; ``segment_note`` per acoustic segment and note searched [s]; ``row`` an
 #: output row, and ``row_node`` per row and wall node (its state read from the trajectory) [s].
-WEIGHTS = {"start": 0.705, "solve": 0.0, "solve_n2": 2.5e-07, "solve_n3": 3.13e-10, "state": 0.0147,
-           "segment": 1.72e-4, "segment_note": 5.64e-06, "row": 8.48e-4, "row_node": 9.37e-07}
+WEIGHTS = {"start": 0.597, "solve": 0.0, "solve_n2": 2.86e-07, "solve_n3": 2.47e-10, "state": 0.00747,
+           "segment": 5.97e-05, "segment_note": 3.86e-06, "row": 0.00117, "row_node": 1.17e-06}
 
 #: A trajectory phase of t minutes costs PHASE_FACTOR t^PHASE_EXPONENT steady states (LSODA's
 #: steps grow with the time span, less than in proportion). Set by hand, not fitted: in process on

@@ -80,10 +80,10 @@ SEGMENT_LENGTH_M = 0.02
 #: Longest play/rest plan, playing time or settle-time search [s] (10 h).
 LONGEST_PLAN_S = 600.0 * 60.0
 #: Longest a run may take by its estimate before it starts [min] unless the user allows more
-#: (``--max-minutes``; drift/budget.py): about 9 times the longest estimate of a bundled
-#: instrument's run with the commands' defaults over every bundled climate (33 s, a brass
-#: retune), over twice that of a fit of a 12-reading log (118 s at most, brass); with the
-#: estimate's error (0.56 to 1.73 times the measured time, docs/performance.md "Time budget") a
+#: (``--max-minutes``; drift/budget.py): about 20 times the longest estimate of a bundled
+#: instrument's run with the commands' defaults over every bundled climate (14 s, a brass
+#: retune), about 6 times that of a fit of a 12-reading log (51 s at most, brass); with the
+#: estimate's error (0.44 to 1.63 times the measured time, docs/performance.md "Time budget") a
 #: refused run would take at least about 3 min, long enough that a wait without a word looks
 #: like a hang.
 MAX_MINUTES = 5.0

@@ -91,7 +91,7 @@ def test_estimate_grows_with_nodes_rows_and_climates(length_mm):
 def test_every_bundled_run_is_far_within_the_default_budget(bundled_instruments):
     # "Normal bundled-instrument runs must stay far below it": every computing command with its
     # defaults, on every bundled instrument, over every bundled climate, at most a fifth of it
-    # (the estimate gave 0.56 to 1.73 times the measured time in bench/bench_budget.py).
+    # (the estimate gave 0.44 to 1.63 times the measured time in bench/bench_budget.py).
     # A fit depends on the player's log: the guide's plan and 12 readings, every note of the
     # instrument read (the most played paths) at most half of it.
     from drift.fit import log_plan, read_tuner_log
