@@ -37,8 +37,8 @@ class _AirFlow:
 
     air_k (n,) mean air temperature per segment [K]; outlet_k (n,) air leaving each segment [K];
     wall_w (n,) heat into each segment's wall [W] (sensible + latent); latent_w (n,) [W];
-    condensation_kg_s (n,) [kg/s]; breath_heat_w, the heat the breath gives up: sensible heat of
-    the inflow minus that of every outflow (constant cp), plus the latent heat released [W].
+    condensation_kg_s (n,) [kg/s]; breath_heat_w, the heat the breath gives up: what the air gives
+    every wall segment, sensible (constant cp) and latent [W].
     """
 
     air_k: np.ndarray
@@ -266,9 +266,14 @@ class HeatBalance(_Dynamics):
             else:
                 self.outlet_reach[k] = d
             self.outlet_weights[k, k] += 1.0 - d
-        # A run starts where a segment's parent is not the segment before it in the order.
-        self.up = self.parent[order]
-        starts = np.flatnonzero(self.up != np.concatenate([[-2], order[:-1]]))
+        # Where each segment with flow takes its air from: the inlet, or its parent (a segment
+        # number, and its place in the order). A run starts where the parent is not the segment
+        # before it in the order.
+        up = np.where(self.parent[order] >= 0, index[np.maximum(self.parent[order], 0)], -1)
+        self.from_inlet = up < 0
+        self.up_segment = np.where(self.from_inlet, 0, order[np.maximum(up, 0)])
+        self.up_order = np.maximum(up, 0)
+        starts = np.flatnonzero((up != np.arange(order.size) - 1) | (up < 0))
         self.runs = [slice(a, b) for a, b in zip(starts, np.append(starts[1:], order.size))]
 
     # -- pieces of the balance -----------------------------------------------------------------
@@ -305,19 +310,18 @@ class HeatBalance(_Dynamics):
         if not order.size:  # no flow at all
             zero = np.zeros((k, n))
             return _AirFlow(t_mean, np.full((k, n), np.nan), zero, zero, zero, np.zeros(k))
-        from_inlet = self.up < 0
-        up = np.maximum(self.up, 0)
+        from_inlet = self.from_inlet
         t_out[:, order] = tw[:, order] @ self.outlet_weights.T + self.t_in * self.outlet_reach
-        t_up = np.where(from_inlet, self.t_in, t_out[:, up])
+        t_up = np.where(from_inlet, self.t_in, t_out[:, self.up_segment])
         t_mean[:, order] = tw[:, order] + (t_up - tw[:, order]) * self.mean_share[order]
         sensible = self.mdot_cp[order] * (t_up - t_out[:, order])
         r_sat = self.r_sat(t_out[:, order])
         r_out = np.empty((k, order.size))
         for run in self.runs:
             first = run.start
-            start = self.r_in if from_inlet[first] else r_out[:, np.searchsorted(order, up[first])][:, None]
+            start = self.r_in if from_inlet[first] else r_out[:, self.up_order[first], None]
             r_out[:, run] = np.minimum.accumulate(np.minimum(start, r_sat[:, run]), axis=1)
-        r_up = np.where(from_inlet, self.r_in, r_out[:, np.searchsorted(order, up)])
+        r_up = np.where(from_inlet, self.r_in, r_out[:, self.up_order])
         condensed_kg = self.ndot_dry[order] * (r_up - r_out) * K.WATER_MOLAR_MASS
         latent = condensed_kg * latent_heat_condensation(t_out[:, order])
         wall_w, latent_w, condensation = np.zeros((k, n)), np.zeros((k, n)), np.zeros((k, n))
