@@ -146,3 +146,30 @@ def test_heat_flows_between_two_rooms_are_interpolated_linearly():
     q, _ = model.heat_flows(temps, False, 300.0)
     area = 2 * math.pi * (wall.inner_radius_m + wall.thickness_m) * wall.lengths_m
     assert np.sum(q) == pytest.approx(0.5 * 0.5 * 800.0 * np.sum(area) / math.pi, rel=1e-9)
+
+
+@pytest.mark.parametrize("playing", [True, False])
+def test_grouped_differences_are_the_full_jacobian(playing):
+    # Consistency of the forward-difference plan (not an outside check): a four-layer wooden
+    # wall with a valve loop, perturbing the middle layers' nodes three segments apart gives the
+    # columns of perturbing every node alone, from 18 + 6 evaluations instead of 36: equal to the
+    # rounding of the differences (a 1e-4 K step on 300 K: about 1e-16 * 300 / 1e-4 = 3e-10).
+    from drift.climate import DEFAULT_BREATH
+    from drift.segments import Branch
+
+    wood = material("tropical_hardwood")
+    bore = wall_from_stations([[0.0, 0.015], [0.16, 0.015]], 0.006, wood, 0.02)
+    loop = wall_from_stations([[0.0, 0.015], [0.02, 0.015]], 0.006, wood, 0.02, lambda x: np.full(x.shape, 0.5))
+    model = heat_balance(dataclasses.replace(bore, branches=(Branch("v", 0.08, loop),)), Room(288.15), REED,
+                         DEFAULT_BREATH)
+    assert (model.n, model.m) == (9, 4)
+    y = np.concatenate([288.15 + np.random.default_rng(3).uniform(0.0, 15.0, 36), [0.0, 0.0]])
+    grouped = model.jacobian(y, playing)
+    batch = np.repeat(y[None, :], 37, axis=0)
+    batch[np.arange(1, 37), np.arange(36)] += 1e-4
+    f = model.derivatives(batch, playing)
+    alone = np.zeros_like(grouped)
+    alone[:, :36] = ((f[1:] - f[0]) / 1e-4).T
+    assert len(model._difference_plan()[0]) + len(model._difference_plan()[1]) == 24
+    np.testing.assert_allclose(grouped, alone, rtol=0, atol=1e-9)
+    assert np.max(np.abs(alone)) > 0.05
