@@ -269,7 +269,7 @@ class HeatBalance(_Dynamics):
             distance.append(b.wall.edges_m - b.wall.edges_m[0])
         w = np.concatenate(share)
         w[w < MIN_FLOW_SHARE] = 0.0
-        self.parent = np.concatenate(parent)
+        parent = np.concatenate(parent)
         self.phi_play = np.concatenate(phi_play)
         self.mdot = w * self.mdot_in
         self.ndot_dry = w * self.ndot_dry_in
@@ -292,27 +292,27 @@ class HeatBalance(_Dynamics):
         # T_w,s with T_out of the inlet's parent = T_in: a linear recurrence, T_out = W T_w + T_in v,
         # built here once (products only, no division). The runs of segments with flow (the bore's,
         # then each loop's) are kept for the water, which is capped run by run.
+        # Where each segment with flow takes its air from: the inlet (-1), or its parent's place in
+        # the order (the parent is a segment number). A run starts where that is not the segment
+        # before it in the order.
         self.order = order = np.flatnonzero(self.flows)
         index = np.full(n, -1)
         index[order] = np.arange(order.size)
+        up = np.where(parent[order] >= 0, index[np.maximum(parent[order], 0)], -1)
         self.outlet_weights = np.zeros((order.size, order.size))
         self.outlet_reach = np.zeros(order.size)
         for k, seg in enumerate(order):
-            d, up = self.decay[seg], index[self.parent[seg]] if self.parent[seg] >= 0 else -1
-            if up >= 0:
-                self.outlet_weights[k] = d * self.outlet_weights[up]
-                self.outlet_reach[k] = d * self.outlet_reach[up]
+            d = self.decay[seg]
+            if up[k] >= 0:
+                self.outlet_weights[k] = d * self.outlet_weights[up[k]]
+                self.outlet_reach[k] = d * self.outlet_reach[up[k]]
             else:
                 self.outlet_reach[k] = d
             self.outlet_weights[k, k] += 1.0 - d
-        # Where each segment with flow takes its air from: the inlet, or its parent (a segment
-        # number, and its place in the order). A run starts where the parent is not the segment
-        # before it in the order.
-        up = np.where(self.parent[order] >= 0, index[np.maximum(self.parent[order], 0)], -1)
         self.from_inlet = up < 0
-        self.up_segment = np.where(self.from_inlet, 0, order[np.maximum(up, 0)])
         self.up_order = np.maximum(up, 0)
-        starts = np.flatnonzero((up != np.arange(order.size) - 1) | (up < 0))
+        self.up_segment = np.where(self.from_inlet, 0, order[self.up_order])
+        starts = np.flatnonzero((up != np.arange(order.size) - 1) | self.from_inlet)
         self.runs = [slice(a, b) for a, b in zip(starts, np.append(starts[1:], order.size))]
 
     # -- pieces of the balance -----------------------------------------------------------------

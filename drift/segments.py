@@ -293,10 +293,6 @@ class PlayedPath:
             offset += length
         return out, inside, along
 
-    def open_position(self, positions_m) -> np.ndarray:
-        """Positions [m] on the path mapped to the bore without loops (:meth:`locate`)."""
-        return self.locate(positions_m)[0]
-
 
 def played_path(instrument: Instrument, note: Note) -> PlayedPath:
     """The bore a note plays on: the loops of the valves it presses inserted at their positions,
